@@ -1,0 +1,79 @@
+#!/usr/bin/env node
+// `npm start`: installs what is missing, builds when the sources changed, then serves the built
+// app. The app itself starts its embedded PostgreSQL and mail catcher when none is configured.
+// Plain JavaScript with no dependencies, because it runs before `npm ci`.
+import { spawn, spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+process.chdir(root);
+const say = (line) => console.log(`[stipple] ${line}`);
+
+function mtime(p) {
+	try {
+		return fs.statSync(p).mtimeMs;
+	} catch {
+		return 0;
+	}
+}
+
+function newest(p) {
+	if (!fs.existsSync(p)) return 0;
+	const st = fs.statSync(p);
+	if (!st.isDirectory()) return st.mtimeMs;
+	let max = st.mtimeMs;
+	for (const entry of fs.readdirSync(p)) max = Math.max(max, newest(path.join(p, entry)));
+	return max;
+}
+
+function run(cmd, args) {
+	const res = spawnSync(cmd, args, { stdio: 'inherit' });
+	if (res.status !== 0) {
+		console.error(`[stipple] '${cmd} ${args.join(' ')}' failed.`);
+		process.exit(res.status ?? 1);
+	}
+}
+
+if (mtime('node_modules/.package-lock.json') < mtime('package-lock.json')) {
+	say('Installing dependencies (npm ci)…');
+	run('npm', ['ci', '--no-audit', '--no-fund']);
+}
+
+const inputs = ['src', 'static', 'package-lock.json', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts'];
+if (mtime('build/handler.js') < Math.max(...inputs.map(newest))) {
+	say('Building…');
+	run('npm', ['run', 'build', '--silent']);
+}
+
+const port = process.env.PORT ?? '3000';
+const host = process.env.HOST ?? '127.0.0.1';
+const env = {
+	...process.env,
+	NODE_ENV: 'production',
+	PORT: port,
+	HOST: host,
+	ORIGIN: process.env.ORIGIN ?? `http://${host}:${port}`,
+	NODE_NO_WARNINGS: '1'
+};
+const app = spawn(process.execPath, ['build/index.js'], { stdio: 'inherit', env });
+for (const signal of ['SIGINT', 'SIGTERM']) process.on(signal, () => app.kill(signal));
+
+// Say where Stipple is once it answers.
+const started = Date.now();
+const poll = setInterval(async () => {
+	try {
+		const res = await fetch(`http://${host}:${port}/api/v1/health`);
+		if (res.ok) {
+			clearInterval(poll);
+			say(`Stipple is ready at ${env.ORIGIN}  (Ctrl+C stops it)`);
+		}
+	} catch {
+		if (Date.now() - started > 120_000) clearInterval(poll);
+	}
+}, 500);
+app.on('exit', (code, signal) => {
+	clearInterval(poll);
+	process.exit(code ?? (signal ? 0 : 1));
+});

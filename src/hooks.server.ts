@@ -1,0 +1,72 @@
+import { building } from '$app/environment';
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { svelteKitHandler } from 'better-auth/svelte-kit';
+import { auth } from '$lib/server/auth';
+import { CODE_FOR_STATUS, jsonError } from '$lib/server/http';
+import { resolveContext } from '$lib/server/orgs';
+import { startServices } from '$lib/server/services';
+
+export const init: ServerInit = async () => {
+	if (!building) await startServices();
+};
+
+/** Who is asking: user, session, organisation and role, from better-auth's signed cookie. */
+const identify: Handle = async ({ event, resolve }) => {
+	event.locals.user = null;
+	event.locals.sessionId = null;
+	event.locals.org = null;
+	event.locals.role = null;
+	const found = await auth().api.getSession({ headers: event.request.headers });
+	if (found) {
+		const { user, session } = found;
+		event.locals.user = { id: user.id, name: user.name, email: user.email };
+		event.locals.sessionId = session.id;
+		const ctx = await resolveContext(user.id, session.id, session.activeOrganizationId ?? null);
+		event.locals.org = ctx.org;
+		event.locals.role = ctx.role;
+	}
+	return svelteKitHandler({ event, resolve, auth: auth(), building });
+};
+
+/** Every JSON API error has one shape: { error: { code, message, issues? } }. */
+const apiErrors: Handle = async ({ event, resolve }) => {
+	const response = await resolve(event);
+	if (!event.url.pathname.startsWith('/api/v1') || response.status < 400) return response;
+	const type = response.headers.get('content-type') ?? '';
+	if (type.includes('application/json')) {
+		const body: unknown = await response.clone().json().catch(() => null);
+		if (body && typeof body === 'object' && 'error' in body) return response;
+		const message =
+			body && typeof body === 'object' && 'message' in body && typeof body.message === 'string'
+				? body.message
+				: 'The request failed.';
+		return jsonError(response.status, message);
+	}
+	const fallback: Record<number, string> = {
+		404: 'There is no such endpoint.',
+		405: 'This endpoint does not accept that method.'
+	};
+	return jsonError(response.status, fallback[response.status] ?? 'The request failed.', CODE_FOR_STATUS[response.status]);
+};
+
+const THEMES = new Set(['light', 'dark']);
+
+const look: Handle = async ({ event, resolve }) => {
+	const theme = event.cookies.get('theme') ?? '';
+	const response = await resolve(event, {
+		transformPageChunk: ({ html }) => html.replace('%stipple.theme%', THEMES.has(theme) ? theme : 'system')
+	});
+	response.headers.set('x-content-type-options', 'nosniff');
+	response.headers.set('referrer-policy', 'same-origin');
+	response.headers.set('x-frame-options', 'DENY');
+	response.headers.set('permissions-policy', 'camera=(self), microphone=(), geolocation=()');
+	return response;
+};
+
+export const handle = sequence(look, apiErrors, identify);
+
+export const handleError: HandleServerError = ({ error, event, status }) => {
+	if (status >= 500) console.error(`[stipple] ${event.request.method} ${event.url.pathname}`, error);
+	return { message: status === 404 ? 'This page does not exist.' : 'Something went wrong on our side.' };
+};

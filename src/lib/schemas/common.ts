@@ -1,0 +1,34 @@
+import { z } from 'zod';
+
+/** Text a person types: trimmed, not blank, bounded so a paste cannot flood the database. */
+export const text = (max: number, label = 'This field') =>
+	z
+		.string({ error: `${label} must be text.` })
+		.trim()
+		.min(1, `${label} is required.`)
+		.max(max, `${label} must be at most ${max} characters.`);
+
+export const email = z
+	.string({ error: 'E-mail must be text.' })
+	.trim()
+	.toLowerCase()
+	.max(254, 'E-mail must be at most 254 characters.')
+	.pipe(z.email('Enter a valid e-mail address.'));
+
+export const password = z
+	.string({ error: 'Password must be text.' })
+	.min(10, 'Use at least 10 characters.')
+	.max(128, 'Use at most 128 characters.');
+
+/** better-auth ids: url-safe random strings. */
+export const authId = z
+	.string({ error: 'Id must be text.' })
+	.min(1, 'Id is required.')
+	.max(64, 'Id is too long.')
+	.regex(/^[A-Za-z0-9_-]+$/, 'Id has characters an id never has.');
+
+export type Issues = { path: string; message: string }[];
+
+export function issuesOf(error: z.ZodError): Issues {
+	return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+}

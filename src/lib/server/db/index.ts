@@ -1,0 +1,64 @@
+import { drizzle, type PostgresJsDatabase } from 'drizzle-orm/postgres-js';
+import { migrate } from 'drizzle-orm/postgres-js/migrator';
+import path from 'node:path';
+import postgres from 'postgres';
+import * as schema from './schema';
+
+export type Db = PostgresJsDatabase<typeof schema>;
+
+interface Connection {
+	client: postgres.Sql;
+	db: Db;
+}
+
+let connection: Connection | undefined;
+
+/**
+ * The pool, built on first use: DATABASE_URL may be set only once the embedded PostgreSQL
+ * has started (see services.ts).
+ */
+function connect(): Connection {
+	if (connection) return connection;
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set and no embedded PostgreSQL was started.');
+	const client = postgres(url, {
+		max: Number(process.env.DATABASE_POOL_SIZE ?? 10),
+		onnotice: () => {},
+		connection: { application_name: 'stipple' }
+	});
+	connection = { client, db: drizzle(client, { schema, casing: 'snake_case' }) };
+	return connection;
+}
+
+/** The shared Drizzle client. */
+export function db(): Db {
+	return connect().db;
+}
+
+export async function closeDb() {
+	const c = connection;
+	connection = undefined;
+	await c?.client.end({ timeout: 5 });
+}
+
+const MIGRATION_LOCK = 7_301_845;
+
+/**
+ * Applies the committed migrations in drizzle/. An advisory lock makes app instances that
+ * start together take turns; the second finds nothing left to do.
+ */
+export async function migrateDb() {
+	const { client, db } = connect();
+	const lock = await client.reserve();
+	try {
+		await lock`SELECT pg_advisory_lock(${MIGRATION_LOCK})`;
+		await migrate(db, {
+			migrationsFolder: path.resolve(process.env.STIPPLE_MIGRATIONS ?? 'drizzle')
+		});
+	} finally {
+		await lock`SELECT pg_advisory_unlock(${MIGRATION_LOCK})`;
+		lock.release();
+	}
+}
+
+export { schema };

@@ -1,0 +1,3 @@
+export * from '../auth.schema';
+export * from './system';
+export * from './catalogue';

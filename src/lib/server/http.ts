@@ -1,0 +1,89 @@
+/** Turning requests into typed input and domain errors into 4xx answers. */
+import { fail, json } from '@sveltejs/kit';
+import type { z } from 'zod';
+import { issuesOf, type Issues } from '$lib/schemas/common';
+import { DomainError } from './errors';
+
+export interface ErrorBody {
+	error: { code: string; message: string; issues?: Issues };
+}
+
+export const CODE_FOR_STATUS: Record<number, string> = {
+	400: 'bad_request',
+	401: 'unauthenticated',
+	403: 'forbidden',
+	404: 'not_found',
+	405: 'method_not_allowed',
+	409: 'conflict',
+	413: 'too_large',
+	415: 'unsupported_media_type',
+	422: 'invalid',
+	429: 'rate_limited'
+};
+
+export function jsonError(status: number, message: string, code?: string, issues?: Issues) {
+	const body: ErrorBody = {
+		error: { code: code ?? CODE_FOR_STATUS[status] ?? 'error', message, ...(issues ? { issues } : {}) }
+	};
+	return json(body, { status });
+}
+
+/** Reads a JSON body and validates it; throws DomainError 400/415/422 with what is wrong. */
+export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<z.infer<S>> {
+	const type = request.headers.get('content-type') ?? '';
+	if (!type.toLowerCase().startsWith('application/json')) {
+		throw new DomainError(415, 'unsupported_media_type', 'Send the body as application/json.');
+	}
+	let raw: unknown;
+	try {
+		raw = await request.json();
+	} catch {
+		throw new DomainError(400, 'bad_json', 'The body is not valid JSON.');
+	}
+	return validate(schema, raw);
+}
+
+export function validate<S extends z.ZodType>(schema: S, raw: unknown): z.infer<S> {
+	const parsed = schema.safeParse(raw);
+	if (!parsed.success) {
+		throw new DomainError(422, 'invalid', 'Some fields are missing or wrong.', issuesOf(parsed.error));
+	}
+	return parsed.data;
+}
+
+/** Runs an endpoint body, answering domain errors in the API's error shape. */
+export async function answer(fn: () => Promise<Response>): Promise<Response> {
+	try {
+		return await fn();
+	} catch (e) {
+		if (e instanceof DomainError) return jsonError(e.status, e.message, e.code, e.issues);
+		throw e;
+	}
+}
+
+const SECRET_FIELDS = new Set(['password', 'confirm', 'currentPassword']);
+
+/**
+ * Runs a form action: parses the form with `schema`, calls `fn`, and turns a bad form or a
+ * domain error into `fail(status, { message, issues, values })` for the page to show.
+ */
+export async function act<S extends z.ZodType, R>(
+	request: Request,
+	schema: S,
+	fn: (data: z.infer<S>) => Promise<R>
+) {
+	const form = await request.formData();
+	const raw: Record<string, string> = {};
+	for (const [k, v] of form) if (typeof v === 'string') raw[k] = v;
+	const values = Object.fromEntries(Object.entries(raw).filter(([k]) => !SECRET_FIELDS.has(k)));
+	const parsed = schema.safeParse(raw);
+	if (!parsed.success) {
+		return fail(400, { message: 'Please check the fields marked below.', issues: issuesOf(parsed.error), values });
+	}
+	try {
+		return await fn(parsed.data);
+	} catch (e) {
+		if (e instanceof DomainError) return fail(e.status, { message: e.message, issues: e.issues ?? [], values });
+		throw e;
+	}
+}

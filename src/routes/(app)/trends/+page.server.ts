@@ -1,0 +1,7 @@
+import { requireRole } from '$lib/server/access';
+import type { PageServerLoad } from './$types';
+
+export const load = ((event) => {
+	requireRole(event, 'engineer', 'toolmaker', 'viewer');
+	return {};
+}) satisfies PageServerLoad;
