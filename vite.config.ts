@@ -25,6 +25,7 @@ export default defineConfig({
 					environment: 'node',
 					include: ['tests/integration/**/*.test.ts'],
 					globalSetup: ['tests/integration/global-setup.ts'],
+					setupFiles: ['tests/integration/setup.ts'],
 					fileParallelism: false,
 					testTimeout: 30_000,
 					hookTimeout: 60_000

@@ -35,7 +35,10 @@ const apiErrors: Handle = async ({ event, resolve }) => {
 	if (!event.url.pathname.startsWith('/api/v1') || response.status < 400) return response;
 	const type = response.headers.get('content-type') ?? '';
 	if (type.includes('application/json')) {
-		const body: unknown = await response.clone().json().catch(() => null);
+		const body: unknown = await response
+			.clone()
+			.json()
+			.catch(() => null);
 		if (body && typeof body === 'object' && 'error' in body) return response;
 		const message =
 			body && typeof body === 'object' && 'message' in body && typeof body.message === 'string'
@@ -47,7 +50,11 @@ const apiErrors: Handle = async ({ event, resolve }) => {
 		404: 'There is no such endpoint.',
 		405: 'This endpoint does not accept that method.'
 	};
-	return jsonError(response.status, fallback[response.status] ?? 'The request failed.', CODE_FOR_STATUS[response.status]);
+	return jsonError(
+		response.status,
+		fallback[response.status] ?? 'The request failed.',
+		CODE_FOR_STATUS[response.status]
+	);
 };
 
 const THEMES = new Set(['light', 'dark']);

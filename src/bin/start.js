@@ -9,8 +9,9 @@ import { fileURLToPath } from 'node:url';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 process.chdir(root);
-const say = (line) => console.log(`[stipple] ${line}`);
+const say = (/** @type {string} */ line) => console.log(`[stipple] ${line}`);
 
+/** @param {string} p */
 function mtime(p) {
 	try {
 		return fs.statSync(p).mtimeMs;
@@ -19,6 +20,7 @@ function mtime(p) {
 	}
 }
 
+/** @param {string} p @returns {number} */
 function newest(p) {
 	if (!fs.existsSync(p)) return 0;
 	const st = fs.statSync(p);
@@ -28,6 +30,7 @@ function newest(p) {
 	return max;
 }
 
+/** @param {string} cmd @param {string[]} args */
 function run(cmd, args) {
 	const res = spawnSync(cmd, args, { stdio: 'inherit' });
 	if (res.status !== 0) {
@@ -58,7 +61,7 @@ const env = {
 	NODE_NO_WARNINGS: '1'
 };
 const app = spawn(process.execPath, ['build/index.js'], { stdio: 'inherit', env });
-for (const signal of ['SIGINT', 'SIGTERM']) process.on(signal, () => app.kill(signal));
+for (const signal of /** @type {const} */ (['SIGINT', 'SIGTERM'])) process.on(signal, () => app.kill(signal));
 
 // Say where Stipple is once it answers.
 const started = Date.now();

@@ -89,7 +89,11 @@ export async function resetPassword(input: z.infer<typeof resetPasswordSchema>) 
 		await auth().api.resetPassword({ body: { token: input.token, newPassword: input.password } });
 	} catch (e) {
 		if (e instanceof APIError && e.statusCode === 400) {
-			throw new DomainError(400, 'invalid_token', 'This reset link has expired or was used already. Ask for a new one.');
+			throw new DomainError(
+				400,
+				'invalid_token',
+				'This reset link has expired or was used already. Ask for a new one.'
+			);
 		}
 		return fromAuthError(e);
 	}

@@ -55,6 +55,7 @@ function build() {
 		secret: authSecret(),
 		baseURL: process.env.ORIGIN,
 		basePath: '/api/auth',
+		logger: { level: process.env.VITEST ? 'error' : 'warn' },
 		database: drizzleAdapter(db(), { provider: 'pg', schema }),
 		emailAndPassword: {
 			enabled: true,

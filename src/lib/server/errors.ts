@@ -16,10 +16,8 @@ export class DomainError extends Error {
 	}
 }
 
-export const notFound = (what = 'That item') =>
-	new DomainError(404, 'not_found', `${what} was not found.`);
+export const notFound = (what = 'That item') => new DomainError(404, 'not_found', `${what} was not found.`);
 
-export const forbidden = (message = 'Your role does not allow this.') =>
-	new DomainError(403, 'forbidden', message);
+export const forbidden = (message = 'Your role does not allow this.') => new DomainError(403, 'forbidden', message);
 
 export const conflict = (message: string) => new DomainError(409, 'conflict', message);

@@ -67,11 +67,7 @@ const SECRET_FIELDS = new Set(['password', 'confirm', 'currentPassword']);
  * Runs a form action: parses the form with `schema`, calls `fn`, and turns a bad form or a
  * domain error into `fail(status, { message, issues, values })` for the page to show.
  */
-export async function act<S extends z.ZodType, R>(
-	request: Request,
-	schema: S,
-	fn: (data: z.infer<S>) => Promise<R>
-) {
+export async function act<S extends z.ZodType, R>(request: Request, schema: S, fn: (data: z.infer<S>) => Promise<R>) {
 	const form = await request.formData();
 	const raw: Record<string, string> = {};
 	for (const [k, v] of form) if (typeof v === 'string') raw[k] = v;

@@ -29,8 +29,7 @@ export function closeMail() {
 
 /** Plain, escaped HTML around a paragraph and one button-like link. */
 export function linkMail(intro: string, label: string, url: string, outro: string) {
-	const esc = (s: string) =>
-		s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+	const esc = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
 	return {
 		text: `${intro}\n\n${label}: ${url}\n\n${outro}\n`,
 		html: `<p>${esc(intro)}</p><p><a href="${esc(url)}">${esc(label)}</a></p><p>${esc(outro)}</p>`

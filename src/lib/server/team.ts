@@ -36,11 +36,7 @@ export async function listPendingInvitations(orgId: string) {
 		.from(invitation)
 		.innerJoin(user, eq(invitation.inviterId, user.id))
 		.where(
-			and(
-				eq(invitation.organizationId, orgId),
-				eq(invitation.status, 'pending'),
-				gt(invitation.expiresAt, sql`now()`)
-			)
+			and(eq(invitation.organizationId, orgId), eq(invitation.status, 'pending'), gt(invitation.expiresAt, sql`now()`))
 		)
 		.orderBy(desc(invitation.createdAt));
 }
@@ -70,7 +66,11 @@ async function changeMembership(
 				.from(member)
 				.where(and(eq(member.organizationId, access.org.id), eq(member.role, 'admin'), ne(member.id, memberId)));
 			if (n === 0) {
-				throw new DomainError(409, 'last_admin', `You cannot ${verb} the last admin. Make someone else an admin first.`);
+				throw new DomainError(
+					409,
+					'last_admin',
+					`You cannot ${verb} the last admin. Make someone else an admin first.`
+				);
 			}
 		}
 		await write(tx, target);
@@ -166,7 +166,11 @@ export async function acceptInvitation(caller: Caller, userEmail: string, invita
 		throw new DomainError(410, 'invitation_closed', 'This invitation is no longer open. Ask your admin for a new one.');
 	}
 	if (preview.email.toLowerCase() !== userEmail.toLowerCase()) {
-		throw new DomainError(403, 'wrong_account', `This invitation is for ${preview.email}. Sign in with that address to accept it.`);
+		throw new DomainError(
+			403,
+			'wrong_account',
+			`This invitation is for ${preview.email}. Sign in with that address to accept it.`
+		);
 	}
 	try {
 		const res = await auth().api.acceptInvitation({ body: { invitationId }, headers: caller.headers });

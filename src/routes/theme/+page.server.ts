@@ -15,7 +15,8 @@ export const actions = {
 	default: async (event) =>
 		act(event.request, themeSchema, async ({ theme, back }) => {
 			if (theme === 'system') event.cookies.delete('theme', { path: '/' });
-			else event.cookies.set('theme', theme, { path: '/', httpOnly: false, sameSite: 'lax', maxAge: 60 * 60 * 24 * 365 });
+			else
+				event.cookies.set('theme', theme, { path: '/', httpOnly: false, sameSite: 'lax', maxAge: 60 * 60 * 24 * 365 });
 			redirect(303, safeRedirect(back));
 		})
 } satisfies Actions;

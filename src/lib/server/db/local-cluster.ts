@@ -80,7 +80,8 @@ function serverAccount(): Account | null {
 		.readFileSync('/etc/passwd', 'utf8')
 		.split('\n')
 		.find((l) => l.startsWith('postgres:'));
-	if (!line) throw new Error("Running as root needs the 'postgres' system user (Debian's postgresql package creates it).");
+	if (!line)
+		throw new Error("Running as root needs the 'postgres' system user (Debian's postgresql package creates it).");
 	const [, , uid, gid] = line.split(':');
 	return { uid: Number(uid), gid: Number(gid) };
 }
@@ -96,12 +97,7 @@ function reachable(dir: string, account: Account): boolean {
 	for (const p of parts) {
 		if (!fs.existsSync(p)) break;
 		const st = fs.statSync(p);
-		const can =
-			st.uid === account.uid
-				? st.mode & 0o100
-				: st.gid === account.gid
-					? st.mode & 0o010
-					: st.mode & 0o001;
+		const can = st.uid === account.uid ? st.mode & 0o100 : st.gid === account.gid ? st.mode & 0o010 : st.mode & 0o001;
 		if (!can) return false;
 	}
 	return true;
@@ -215,14 +211,17 @@ export async function startLocalCluster(options: ClusterOptions): Promise<LocalC
 	if (!port) {
 		port = await freePort();
 		const args = [
-			'-D', pgData,
-			'-p', String(port),
-			'-c', 'listen_addresses=127.0.0.1',
-			'-c', 'unix_socket_directories=',
-			'-c', 'max_connections=200',
-			...(options.ephemeral
-				? ['-c', 'fsync=off', '-c', 'synchronous_commit=off', '-c', 'full_page_writes=off']
-				: [])
+			'-D',
+			pgData,
+			'-p',
+			String(port),
+			'-c',
+			'listen_addresses=127.0.0.1',
+			'-c',
+			'unix_socket_directories=',
+			'-c',
+			'max_connections=200',
+			...(options.ephemeral ? ['-c', 'fsync=off', '-c', 'synchronous_commit=off', '-c', 'full_page_writes=off'] : [])
 		];
 		const logFile = fs.openSync(path.join(dataDir, 'server.log'), 'a');
 		if (account) fs.fchownSync(logFile, account.uid, account.gid);
@@ -257,14 +256,26 @@ async function createDatabase(bin: string, port: number, password: string, accou
 	const env = { ...process.env, PGPASSWORD: password };
 	const exists = spawnSync(
 		path.join(bin, 'psql'),
-		['-h', '127.0.0.1', '-p', String(port), '-U', ROLE, '-d', 'postgres', '-tAc', `SELECT 1 FROM pg_database WHERE datname = '${DATABASE}'`],
+		[
+			'-h',
+			'127.0.0.1',
+			'-p',
+			String(port),
+			'-U',
+			ROLE,
+			'-d',
+			'postgres',
+			'-tAc',
+			`SELECT 1 FROM pg_database WHERE datname = '${DATABASE}'`
+		],
 		{ env, encoding: 'utf8', uid: account?.uid, gid: account?.gid }
 	);
 	if (exists.stdout.trim() === '1') return;
-	const res = spawnSync(
-		path.join(bin, 'createdb'),
-		['-h', '127.0.0.1', '-p', String(port), '-U', ROLE, DATABASE],
-		{ env, encoding: 'utf8', uid: account?.uid, gid: account?.gid }
-	);
+	const res = spawnSync(path.join(bin, 'createdb'), ['-h', '127.0.0.1', '-p', String(port), '-U', ROLE, DATABASE], {
+		env,
+		encoding: 'utf8',
+		uid: account?.uid,
+		gid: account?.gid
+	});
 	if (res.status !== 0) throw new Error(`createdb failed: ${res.stderr}`);
 }

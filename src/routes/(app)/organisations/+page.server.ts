@@ -11,7 +11,11 @@ export const actions = {
 	switch: async (event) => {
 		const user = requireUser(event);
 		return act(event.request, switchOrganisationSchema, async ({ organizationId }) => {
-			await switchOrganisation({ headers: event.request.headers, ip: event.getClientAddress() }, user.id, organizationId);
+			await switchOrganisation(
+				{ headers: event.request.headers, ip: event.getClientAddress() },
+				user.id,
+				organizationId
+			);
 			redirect(303, '/');
 		});
 	}

@@ -1,7 +1,14 @@
 import { changeRoleFormSchema, invitationRefSchema, inviteSchema, memberRefSchema } from '$lib/schemas/team';
 import { requireRole } from '$lib/server/access';
 import { act } from '$lib/server/http';
-import { cancelInvitation, changeRole, invite, listMembers, listPendingInvitations, removeMember } from '$lib/server/team';
+import {
+	cancelInvitation,
+	changeRole,
+	invite,
+	listMembers,
+	listPendingInvitations,
+	removeMember
+} from '$lib/server/team';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load = (async (event) => {

@@ -33,7 +33,11 @@ export const actions = {
 	default: async (event) => {
 		const user = requireUser(event);
 		return act(event.request, z.object({}), async () => {
-			await acceptInvitation({ headers: event.request.headers, ip: event.getClientAddress() }, user.email, event.params.id);
+			await acceptInvitation(
+				{ headers: event.request.headers, ip: event.getClientAddress() },
+				user.email,
+				event.params.id
+			);
 			redirect(303, '/');
 		});
 	}

@@ -9,6 +9,10 @@ export const POST: RequestHandler = (event) =>
 	answer(async () => {
 		const user = requireUser(event);
 		const { invitationId } = validate(invitationRefSchema, event.params);
-		const inv = await acceptInvitation({ headers: event.request.headers, ip: event.getClientAddress() }, user.email, invitationId);
+		const inv = await acceptInvitation(
+			{ headers: event.request.headers, ip: event.getClientAddress() },
+			user.email,
+			invitationId
+		);
 		return json({ organization: inv.organization, role: inv.role });
 	});

@@ -1,0 +1,76 @@
+import { expect, test } from '@playwright/test';
+import { shoot, signIn } from './helpers';
+
+const PAGES = ['/', '/bench', '/trends', '/hotspots', '/repairs', '/signals', '/setup', '/team', '/mailbox'];
+
+test('every main screen renders for the demo admin, light and dark, and is written for review', async ({ page }) => {
+	await page.goto('/sign-in');
+	await shoot(page, 'sign-in');
+	await signIn(page, 'admin@example.com');
+	for (const p of PAGES) {
+		const res = await page.goto(p);
+		expect(res?.status(), p).toBe(200);
+		await expect(page.getByRole('heading', { level: 1 })).toBeVisible();
+		await shoot(page, `admin${p === '/' ? '-home' : p.replace('/', '-')}`);
+	}
+	await page.emulateMedia({ colorScheme: 'dark' });
+	await page.goto('/team');
+	const bg = await page.evaluate(() => getComputedStyle(document.documentElement).backgroundColor);
+	expect(bg).toBe('rgb(21, 25, 27)');
+	await shoot(page, 'admin-team-dark');
+});
+
+test('fits a 768 px tablet in portrait without sideways scrolling', async ({ browser }) => {
+	const tablet = await browser.newContext({ viewport: { width: 768, height: 1024 }, hasTouch: true });
+	const page = await tablet.newPage();
+	await signIn(page, 'admin@example.com');
+	for (const p of ['/', '/team', '/bench']) {
+		await page.goto(p);
+		const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+		expect(overflow, p).toBeLessThanOrEqual(0);
+	}
+	await shoot(page, 'tablet-team');
+	await tablet.close();
+});
+
+test('is usable from the keyboard: skip link first, then the screens', async ({ page }) => {
+	await signIn(page, 'engineer@example.com');
+	await page.goto('/');
+	await page.keyboard.press('Tab');
+	await expect(page.getByRole('link', { name: 'Skip to content' })).toBeFocused();
+	await page.keyboard.press('Enter');
+	await expect(page).toHaveURL(/#main$/);
+});
+
+test('each role sees its own screens', async ({ browser }) => {
+	const expected: Record<string, string[]> = {
+		'engineer@example.com': ['Bench', 'Trends', 'Hot spots', 'Repairs', 'Signals', 'Setup'],
+		'inspector@example.com': ['Bench', 'Setup'],
+		'toolmaker@example.com': ['Trends', 'Hot spots', 'Repairs', 'Setup'],
+		'viewer@example.com': ['Trends', 'Hot spots', 'Repairs', 'Setup']
+	};
+	for (const [email, screens] of Object.entries(expected)) {
+		const ctx = await browser.newContext();
+		const page = await ctx.newPage();
+		await signIn(page, email);
+		const links = page.getByRole('navigation', { name: 'Screens' }).getByRole('listitem');
+		await expect(links).toHaveText(screens);
+		expect((await page.goto('/team'))?.status()).toBe(403);
+		await ctx.close();
+	}
+});
+
+test('built pages load nothing from outside this server', async ({ page }) => {
+	const outside: string[] = [];
+	page.on('request', (req) => {
+		if (!req.url().startsWith(process.env.STIPPLE_E2E_URL!) && !req.url().startsWith('data:')) outside.push(req.url());
+	});
+	await signIn(page, 'viewer@example.com');
+	await page.goto('/trends');
+	await page.goto('/sign-in');
+	expect(outside).toEqual([]);
+	const fonts = await page.evaluate(() =>
+		[...document.fonts].filter((f) => f.status === 'loaded').map((f) => f.family)
+	);
+	expect(fonts.join(',')).toContain('Atkinson Hyperlegible Next');
+});
