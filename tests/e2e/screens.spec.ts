@@ -29,7 +29,7 @@ test('fits a 768 px tablet in portrait without sideways scrolling', async ({ bro
 		const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
 		expect(overflow, p).toBeLessThanOrEqual(0);
 	}
-	await shoot(page, 'tablet-team');
+	await shoot(page, 'tablet-bench');
 	await tablet.close();
 });
 
