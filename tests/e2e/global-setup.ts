@@ -33,6 +33,7 @@ export default async function globalSetup() {
 			ORIGIN: url,
 			DATABASE_URL: cluster.url,
 			SMTP_URL: '',
+			S3_ENDPOINT: '',
 			STIPPLE_DATA_DIR: dir,
 			BETTER_AUTH_SECRET: 'end-to-end-tests-only-secret-0123456789'
 		}

@@ -20,6 +20,34 @@ test('every main screen renders for the demo admin, light and dark, and is writt
 	await shoot(page, 'admin-team-dark');
 });
 
+test('Setup shows the demo part with its two drawings, served through the access-checked route', async ({
+	page,
+	browser
+}) => {
+	await signIn(page, 'inspector@example.com');
+	await page.goto('/setup');
+	const drawings = page.getByRole('list', { name: 'Drawings of FW-118' }).getByRole('img');
+	await expect(drawings).toHaveCount(2);
+	for (const img of await drawings.all()) {
+		await expect.poll(() => img.evaluate((el: HTMLImageElement) => el.complete && el.naturalWidth)).toBe(320);
+	}
+	const src = await drawings.first().getAttribute('src');
+	// A stranger gets no drawing.
+	const anon = await browser.newContext();
+	expect((await anon.request.get(src!)).status()).toBe(401);
+	await anon.close();
+	await shoot(page, 'inspector-setup');
+});
+
+test("an unknown page and a forbidden page answer with Stipple's own error screen", async ({ page }) => {
+	await signIn(page, 'viewer@example.com');
+	expect((await page.goto('/no-such-page'))?.status()).toBe(404);
+	await expect(page.getByRole('heading', { name: 'Nothing here' })).toBeVisible();
+	expect((await page.goto('/signals'))?.status()).toBe(403);
+	await expect(page.getByRole('heading', { name: 'Not for your role' })).toBeVisible();
+	await shoot(page, 'error-403');
+});
+
 test('fits a 768 px tablet in portrait without sideways scrolling', async ({ browser }) => {
 	const tablet = await browser.newContext({ viewport: { width: 768, height: 1024 }, hasTouch: true });
 	const page = await tablet.newPage();

@@ -9,7 +9,10 @@ import type { Role } from '$lib/roles';
 import { auth } from './auth';
 import { DEMO_PASSWORD } from './config';
 import { db } from './db';
-import { account, appSetting, member, organization, part, tool, toolPart, user } from './db/schema';
+import { account, appSetting, member, organization, part, partView, tool, toolPart, user } from './db/schema';
+import { frontViewSvg, sectionViewSvg } from './demo-drawing';
+import { storeRevision } from './drawings';
+import { processImage } from './images';
 
 export const DEMO_ORG = { name: 'Fernwick Moulding Works', slug: 'fernwick' };
 
@@ -27,6 +30,9 @@ const SEEDED_KEY = 'demo_seeded';
 export async function seedDemoOnce(): Promise<boolean> {
 	const ctx = await auth().$context;
 	const hash = await ctx.password.hash(DEMO_PASSWORD);
+	const drawings = await Promise.all(
+		[frontViewSvg(), sectionViewSvg()].map((svg) => processImage(Buffer.from(svg, 'utf8')))
+	);
 	return db().transaction(async (tx) => {
 		// Two instances starting together: the second waits here, then finds the flag.
 		await tx.execute(sql`SELECT pg_advisory_xact_lock(7301846)`);
@@ -73,7 +79,20 @@ export async function seedDemoOnce(): Promise<boolean> {
 			.insert(tool)
 			.values({ organizationId: orgId, code: 'MQ-4', name: 'Grille cover mould', kind: 'mould', cavityCount: 4 })
 			.returning({ id: tool.id });
-		if (grille && mould) await tx.insert(toolPart).values({ toolId: mould.id, partId: grille.id });
+		if (!grille || !mould) throw new Error('demo part or mould was not inserted');
+		await tx.insert(toolPart).values({ toolId: mould.id, partId: grille.id });
+
+		const views = await tx
+			.insert(partView)
+			.values([
+				{ organizationId: orgId, partId: grille.id, name: 'Front', position: 0 },
+				{ organizationId: orgId, partId: grille.id, name: 'Section A–A', position: 1 }
+			])
+			.returning({ id: partView.id });
+		for (const [i, view] of views.entries()) {
+			const owner = { organizationId: orgId, viewId: view.id, userId: null };
+			await storeRevision(owner, drawings[i]!, 'Drawn for the demo.', tx);
+		}
 		return true;
 	});
 }

@@ -1,6 +1,6 @@
 /**
  * Starts what Stipple needs on this machine when nothing is configured: its own PostgreSQL
- * (no DATABASE_URL) and a mail catcher (no SMTP_URL). Then migrates and seeds the demo once.
+ * (no DATABASE_URL), a mail catcher (no SMTP_URL) and an S3 stand-in (no S3_ENDPOINT). Then migrates and seeds the demo once.
  * With the variables set, the same code talks to the managed services instead.
  */
 import path from 'node:path';
@@ -10,9 +10,11 @@ import { dataRoot, authSecret, DEMO_PASSWORD } from './config';
 import { startMailCatcher, type MailCatcher } from './mail-catcher';
 import { closeMail } from './mail';
 import { seedDemoOnce, DEMO_USERS } from './seed';
+import { closeStorage, ensureBucket, startLocalS3, type LocalS3 } from './storage';
 
 let cluster: LocalCluster | undefined;
 let catcher: MailCatcher | undefined;
+let localS3: LocalS3 | undefined;
 let started: Promise<void> | undefined;
 
 const log = (line: string) => console.log(`[stipple] ${line}`);
@@ -36,6 +38,12 @@ async function start() {
 		process.env.STIPPLE_MAIL_CATCHER = '1';
 		log(`Mail catcher on ${catcher.url}; admins read caught mail at /mailbox`);
 	}
+	if (!process.env.S3_ENDPOINT) {
+		localS3 = await startLocalS3(path.join(dataRoot(), 's3'));
+		process.env.S3_ENDPOINT = localS3.endpoint;
+		log(`S3 stand-in (s3rver) on ${localS3.endpoint}, files in ${path.join(dataRoot(), 's3')}`);
+	}
+	await ensureBucket();
 	if (process.env.STIPPLE_SEED !== 'off') {
 		const seeded = await seedDemoOnce();
 		if (seeded) log('Demo organisation seeded (first run).');
@@ -47,10 +55,13 @@ async function start() {
 
 export async function stopServices() {
 	closeMail();
+	closeStorage();
 	await catcher?.stop();
+	await localS3?.stop();
 	await closeDb();
 	await cluster?.stop();
 	catcher = undefined;
+	localS3 = undefined;
 	cluster = undefined;
 	started = undefined;
 }
