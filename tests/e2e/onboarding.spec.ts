@@ -113,3 +113,27 @@ test('a wrong password is refused with a clear message', async ({ page }) => {
 	await expect(page.getByRole('alert')).toContainText('do not match an account');
 	await expect(page.getByLabel('E-mail')).toHaveValue('engineer@example.com');
 });
+
+test('someone in two organisations switches between them', async ({ page }) => {
+	const email = unique('twoplants');
+	await page.goto('/sign-up');
+	await page.getByLabel('Your name').fill('Tove Ek');
+	await page.getByLabel('E-mail').fill(email);
+	await page.getByLabel('Password').fill('a long enough password');
+	await page.getByRole('button', { name: 'Create account' }).click();
+	await page.getByLabel('Plant or company name').fill('Ek Plant North');
+	await page.getByRole('button', { name: 'Set up the organisation' }).click();
+	await expect(page).toHaveURL(/\/team$/);
+
+	await page.getByRole('button', { name: /Tove Ek/ }).click();
+	await page.getByRole('link', { name: 'Add an organisation' }).click();
+	await page.getByLabel('Plant or company name').fill('Ek Plant South');
+	await page.getByRole('button', { name: 'Set up the organisation' }).click();
+	await expect(page.getByRole('heading', { name: 'Members of Ek Plant South' })).toBeVisible();
+
+	const switcher = page.getByLabel('Organisation', { exact: true });
+	await switcher.selectOption({ label: 'Ek Plant North' });
+	await expect(page.getByText('Ek Plant North · Admin')).toBeVisible();
+	await page.goto('/team');
+	await expect(page.getByRole('heading', { name: 'Members of Ek Plant North' })).toBeVisible();
+});

@@ -102,3 +102,17 @@ test('built pages load nothing from outside this server', async ({ page }) => {
 	);
 	expect(fonts.join(',')).toContain('Atkinson Hyperlegible Next');
 });
+
+test('the look can be set to dark from the user menu and stays so', async ({ page }) => {
+	await signIn(page, 'toolmaker@example.com');
+	await page.getByRole('button', { name: /Rui Amado/ }).click();
+	await page.getByRole('button', { name: 'Dark' }).click();
+	await expect(page.locator('html')).toHaveAttribute('data-theme', 'dark');
+	await page.reload();
+	await expect(page.locator('html')).toHaveAttribute('data-theme', 'dark');
+	await page.keyboard.press('Escape');
+	await shoot(page, 'toolmaker-home-dark');
+	await page.getByRole('button', { name: /Rui Amado/ }).click();
+	await page.getByRole('button', { name: 'Auto' }).click();
+	await expect(page.locator('html')).toHaveAttribute('data-theme', 'system');
+});
