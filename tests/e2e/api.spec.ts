@@ -1,5 +1,5 @@
 import { expect, test, type APIRequestContext, type APIResponse } from '@playwright/test';
-import { signIn } from './helpers';
+import { signIn, signUp } from './helpers';
 
 async function expectErrorShape(res: APIResponse, status: number | number[]) {
 	const allowed = Array.isArray(status) ? status : [status];
@@ -100,12 +100,7 @@ test.describe('JSON API', () => {
 		const ctx = await browser.newContext();
 		const other = await ctx.newPage();
 		const email = `outsider-${Date.now()}@example.com`;
-		await other.goto('/sign-up');
-		await other.getByLabel('Your name').fill('Out Sider');
-		await other.getByLabel('E-mail').fill(email);
-		await other.getByLabel('Password').fill('a long enough password');
-		await other.getByRole('button', { name: 'Create account' }).click();
-		await expect(other).toHaveURL(/\/welcome$/);
+		await signUp(other, 'Out Sider', email);
 		const created = await other.request.post('/api/v1/organizations', { data: { name: 'Elsewhere Works' } });
 		expect(created.status()).toBe(201);
 

@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { shoot, unique } from './helpers';
+import { setUpOrganisation, shoot, signUp, unique } from './helpers';
 
 test('a new user sets up a plant, invites an inspector, who joins from the e-mail and sees only inspector screens', async ({
 	browser,
@@ -9,16 +9,9 @@ test('a new user sets up a plant, invites an inspector, who joins from the e-mai
 	const inspector = unique('inspector');
 
 	// Sign up and create the organisation.
-	await page.goto('/sign-up');
-	await page.getByLabel('Your name').fill('Petra Lund');
-	await page.getByLabel('E-mail').fill(founder);
-	await page.getByLabel('Password').fill('a long enough password');
-	await page.getByRole('button', { name: 'Create account' }).click();
-	await expect(page).toHaveURL(/\/welcome$/);
-	await page.getByLabel('Plant or company name').fill('Lund Pressings');
-	await page.getByRole('button', { name: 'Set up the organisation' }).click();
+	await signUp(page, 'Petra Lund', founder);
+	await setUpOrganisation(page, 'Lund Pressings');
 	await expect(page).toHaveURL(/\/team$/);
-	await expect(page.getByRole('heading', { name: 'Members of Lund Pressings' })).toBeVisible();
 
 	// Invite an inspector.
 	await page.getByLabel('E-mail').fill(inspector);
@@ -71,14 +64,8 @@ test('a new user sets up a plant, invites an inspector, who joins from the e-mai
 
 test('a forgotten password is reset from the e-mailed link', async ({ browser, page }) => {
 	const email = unique('forgetful');
-	await page.goto('/sign-up');
-	await page.getByLabel('Your name').fill('Nell Hart');
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill('the first password');
-	await page.getByRole('button', { name: 'Create account' }).click();
-	await page.getByLabel('Plant or company name').fill('Hart Castings');
-	await page.getByRole('button', { name: 'Set up the organisation' }).click();
-	await expect(page).toHaveURL(/\/team$/);
+	await signUp(page, 'Nell Hart', email, 'the first password');
+	await setUpOrganisation(page, 'Hart Castings');
 
 	const anon = await browser.newContext();
 	const tab = await anon.newPage();
@@ -116,20 +103,12 @@ test('a wrong password is refused with a clear message', async ({ page }) => {
 
 test('someone in two organisations switches between them', async ({ page }) => {
 	const email = unique('twoplants');
-	await page.goto('/sign-up');
-	await page.getByLabel('Your name').fill('Tove Ek');
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill('a long enough password');
-	await page.getByRole('button', { name: 'Create account' }).click();
-	await page.getByLabel('Plant or company name').fill('Ek Plant North');
-	await page.getByRole('button', { name: 'Set up the organisation' }).click();
-	await expect(page).toHaveURL(/\/team$/);
+	await signUp(page, 'Tove Ek', email);
+	await setUpOrganisation(page, 'Ek Plant North');
 
 	await page.getByRole('button', { name: /Tove Ek/ }).click();
 	await page.getByRole('link', { name: 'Add an organisation' }).click();
-	await page.getByLabel('Plant or company name').fill('Ek Plant South');
-	await page.getByRole('button', { name: 'Set up the organisation' }).click();
-	await expect(page.getByRole('heading', { name: 'Members of Ek Plant South' })).toBeVisible();
+	await setUpOrganisation(page, 'Ek Plant South');
 
 	const switcher = page.getByLabel('Organisation', { exact: true });
 	await switcher.selectOption({ label: 'Ek Plant North' });
