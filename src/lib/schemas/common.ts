@@ -32,3 +32,10 @@ export type Issues = { path: string; message: string }[];
 export function issuesOf(error: z.ZodError): Issues {
 	return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
 }
+
+/** A checkbox in a page form: present ("on" or "true") means true, absent means false. */
+export const formBool = z.preprocess((v) => v === 'on' || v === 'true' || v === true, z.boolean());
+
+/** A field a form may send several times (checkboxes of one name): always a list. */
+export const formList = <T extends z.ZodType>(item: T, max = 500) =>
+	z.preprocess((v) => (v === undefined || v === '' ? [] : Array.isArray(v) ? v : [v]), z.array(item).max(max));

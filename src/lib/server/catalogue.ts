@@ -37,9 +37,12 @@ export async function listTools(orgId: string) {
 		.where(eq(tool.organizationId, orgId))
 		.orderBy(asc(tool.code));
 	const links = await db()
-		.select({ toolId: toolPart.toolId, number: part.number })
+		.select({ toolId: toolPart.toolId, partId: part.id, number: part.number })
 		.from(toolPart)
 		.innerJoin(part, eq(toolPart.partId, part.id))
 		.where(eq(part.organizationId, orgId));
-	return tools.map((t) => ({ ...t, parts: links.filter((l) => l.toolId === t.id).map((l) => l.number) }));
+	return tools.map((t) => {
+		const mine = links.filter((l) => l.toolId === t.id);
+		return { ...t, partIds: mine.map((l) => l.partId), parts: mine.map((l) => l.number) };
+	});
 }

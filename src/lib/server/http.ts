@@ -68,10 +68,26 @@ const SECRET_FIELDS = new Set(['password', 'confirm', 'currentPassword']);
  * domain error into `fail(status, { message, issues, values })` for the page to show.
  */
 export async function act<S extends z.ZodType, R>(request: Request, schema: S, fn: (data: z.infer<S>) => Promise<R>) {
-	const form = await request.formData();
-	const raw: Record<string, string> = {};
-	for (const [k, v] of form) if (typeof v === 'string') raw[k] = v;
-	const values = Object.fromEntries(Object.entries(raw).filter(([k]) => !SECRET_FIELDS.has(k)));
+	let form: FormData;
+	try {
+		form = await request.formData();
+	} catch {
+		return fail(400, {
+			message: 'The form could not be read. Reload the page and try again.',
+			issues: [] as Issues,
+			values: {} as Record<string, string>
+		});
+	}
+	// A name sent more than once (a group of checkboxes) becomes a list.
+	const raw: Record<string, string | string[]> = {};
+	for (const [k, v] of form) {
+		if (typeof v !== 'string') continue;
+		const seen = raw[k];
+		raw[k] = seen === undefined ? v : Array.isArray(seen) ? [...seen, v] : [seen, v];
+	}
+	const values = Object.fromEntries(
+		Object.entries(raw).filter(([k]) => !SECRET_FIELDS.has(k)).map(([k, v]) => [k, Array.isArray(v) ? v.join(', ') : v])
+	);
 	const parsed = schema.safeParse(raw);
 	if (!parsed.success) {
 		return fail(400, { message: 'Please check the fields marked below.', issues: issuesOf(parsed.error), values });

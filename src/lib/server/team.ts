@@ -3,7 +3,8 @@ import { and, asc, desc, eq, gt, ne, sql } from 'drizzle-orm';
 import type { Role } from '$lib/roles';
 import { auth } from './auth';
 import { db } from './db';
-import { auditEntry, invitation, member, organization, user } from './db/schema';
+import { invitation, member, organization, user } from './db/schema';
+import { audit } from './audit';
 import { DomainError, notFound } from './errors';
 import { fromAuthError, type Caller } from './accounts';
 import type { Access } from './access';
@@ -82,9 +83,7 @@ export async function changeRole(access: Access, memberId: string, role: Role) {
 	await changeMembership(access, memberId, 'demote', async (tx, target) => {
 		if (target.role === role) return;
 		await tx.update(member).set({ role }).where(eq(member.id, memberId));
-		await tx.insert(auditEntry).values({
-			organizationId: access.org.id,
-			actorId: access.user.id,
+		await audit(tx, access, {
 			action: 'role.change',
 			subject: 'member',
 			subjectId: memberId,
@@ -97,9 +96,7 @@ export async function changeRole(access: Access, memberId: string, role: Role) {
 export async function removeMember(access: Access, memberId: string) {
 	await changeMembership(access, memberId, 'remove', async (tx, target) => {
 		await tx.delete(member).where(eq(member.id, memberId));
-		await tx.insert(auditEntry).values({
-			organizationId: access.org.id,
-			actorId: access.user.id,
+		await audit(tx, access, {
 			action: 'member.remove',
 			subject: 'member',
 			subjectId: memberId,

@@ -61,4 +61,12 @@ export async function migrateDb() {
 	}
 }
 
+/** PostgreSQL's unique_violation (23505), as postgres.js or Drizzle's wrapper reports it. */
+export function isUniqueViolation(e: unknown): boolean {
+	for (let cur: unknown = e; cur && typeof cur === 'object'; cur = (cur as { cause?: unknown }).cause) {
+		if ((cur as { code?: unknown }).code === '23505') return true;
+	}
+	return false;
+}
+
 export { schema };

@@ -1,3 +1,4 @@
 export * from '../auth.schema';
 export * from './system';
 export * from './catalogue';
+export * from './quality';

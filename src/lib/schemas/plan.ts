@@ -1,0 +1,27 @@
+import { z } from 'zod';
+
+export const FREQUENCIES = ['shift', 'lot', 'hours'] as const;
+
+export const samplingPlanSchema = z
+	.object({
+		basis: z.enum(['units', 'area'], { error: 'Basis is units or area.' }),
+		sampleSize: z.coerce
+			.number({ error: 'Sample size is a number.' })
+			.positive('Sample size is above zero.')
+			.max(100_000, 'Sample size is at most 100,000.'),
+		unitName: z.string().trim().max(20, 'Unit name is at most 20 characters.').default('unit'),
+		frequency: z.enum(FREQUENCIES, { error: 'How often: per shift, per lot or every N hours.' }),
+		everyHours: z.coerce.number().int().min(1).max(168).nullable().default(null),
+		defectTypeIds: z.array(z.uuid('Not a valid id.')).max(500).default([]),
+		photoForSevere: z.boolean().default(false)
+	})
+	.superRefine((v, ctx) => {
+		if (v.basis === 'units' && !Number.isInteger(v.sampleSize)) {
+			ctx.addIssue({ code: 'custom', path: ['sampleSize'], message: 'Counted in units, a sample is a whole number.' });
+		}
+		if (v.frequency === 'hours' && !v.everyHours) {
+			ctx.addIssue({ code: 'custom', path: ['everyHours'], message: 'Say every how many hours.' });
+		}
+	});
+
+export type SamplingPlanInput = z.infer<typeof samplingPlanSchema>;

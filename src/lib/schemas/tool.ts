@@ -1,0 +1,19 @@
+import { z } from 'zod';
+import { text } from './common';
+
+export const TOOL_KINDS = ['die', 'mould', 'fixture'] as const;
+
+export const toolSchema = z.object({
+	code: text(30, 'Code').regex(/^[A-Za-z0-9][A-Za-z0-9 ._/-]*$/, 'Use letters, digits, spaces and . _ / -.'),
+	name: text(120, 'Name'),
+	kind: z.enum(TOOL_KINDS, { error: 'Kind is die, mould or fixture.' }),
+	cavityCount: z.coerce
+		.number({ error: 'Cavities is a number.' })
+		.int('Cavities is a whole number.')
+		.min(1, 'A tool has at least one cavity.')
+		.max(128, 'At most 128 cavities.'),
+	partIds: z.array(z.uuid('Not a valid id.')).max(500).default([])
+});
+
+export const toolPatchSchema = toolSchema.partial();
+export type ToolInput = z.infer<typeof toolSchema>;
