@@ -80,7 +80,13 @@ export async function createDefectType(access: Access, input: DefectTypeInput) {
 			if (!values.allParts && partIds.length) {
 				await tx.insert(defectTypePart).values(partIds.map((partId) => ({ defectTypeId: row!.id, partId })));
 			}
-			await audit(tx, access, { action: 'defect_type.create', subject: 'defect_type', subjectId: row!.id, before: null, after: input });
+			await audit(tx, access, {
+				action: 'defect_type.create',
+				subject: 'defect_type',
+				subjectId: row!.id,
+				before: null,
+				after: input
+			});
 			return row!;
 		});
 	} catch (e) {
@@ -100,12 +106,21 @@ export async function updateDefectType(access: Access, id: string, patch: z.infe
 				...(retired === undefined ? {} : { retiredAt: retired ? (current.retiredAt ?? new Date()) : null })
 			};
 			if (Object.keys(values).length) await tx.update(defectType).set(values).where(eq(defectType.id, id));
-			const beforeParts = (await tx.select().from(defectTypePart).where(eq(defectTypePart.defectTypeId, id))).map((l) => l.partId);
+			const beforeParts = (await tx.select().from(defectTypePart).where(eq(defectTypePart.defectTypeId, id))).map(
+				(l) => l.partId
+			);
 			if (partIds) {
 				await tx.delete(defectTypePart).where(eq(defectTypePart.defectTypeId, id));
-				if (partIds.length) await tx.insert(defectTypePart).values(partIds.map((partId) => ({ defectTypeId: id, partId })));
+				if (partIds.length)
+					await tx.insert(defectTypePart).values(partIds.map((partId) => ({ defectTypeId: id, partId })));
 			}
-			const before = { ...current, retired: current.retiredAt !== null, partIds: beforeParts.sort(), retiredAt: undefined, position: undefined };
+			const before = {
+				...current,
+				retired: current.retiredAt !== null,
+				partIds: beforeParts.sort(),
+				retiredAt: undefined,
+				position: undefined
+			};
 			const after = {
 				...before,
 				...rest,
@@ -139,9 +154,18 @@ export async function reorderDefectTypes(access: Access, ids: string[]) {
 		}
 		const before = [...all].sort((a, b) => a.position - b.position).map((t) => t.id);
 		for (const [position, id] of ids.entries()) {
-			await tx.update(defectType).set({ position }).where(and(eq(defectType.id, id), eq(defectType.organizationId, access.org.id)));
+			await tx
+				.update(defectType)
+				.set({ position })
+				.where(and(eq(defectType.id, id), eq(defectType.organizationId, access.org.id)));
 		}
-		await audit(tx, access, { action: 'defect_type.reorder', subject: 'catalogue', subjectId: access.org.id, before, after: ids });
+		await audit(tx, access, {
+			action: 'defect_type.reorder',
+			subject: 'catalogue',
+			subjectId: access.org.id,
+			before,
+			after: ids
+		});
 	});
 }
 
@@ -161,8 +185,13 @@ export async function setWeights(access: Access, weights: z.infer<typeof weights
 			.onConflictDoUpdate({ target: demeritWeights.organizationId, set: weights });
 		const diff = changedFields(before, weights);
 		if (diff.any) {
-			await audit(tx, access, { action: 'weights.update', subject: 'catalogue', subjectId: access.org.id, before: diff.from, after: diff.to });
+			await audit(tx, access, {
+				action: 'weights.update',
+				subject: 'catalogue',
+				subjectId: access.org.id,
+				before: diff.from,
+				after: diff.to
+			});
 		}
 	});
 }
-

@@ -3,6 +3,7 @@ import { fail, json } from '@sveltejs/kit';
 import type { z } from 'zod';
 import { issuesOf, type Issues } from '$lib/schemas/common';
 import { DomainError } from './errors';
+import { IMAGE_LIMITS } from './images';
 
 export interface ErrorBody {
 	error: { code: string; message: string; issues?: Issues };
@@ -86,7 +87,9 @@ export async function act<S extends z.ZodType, R>(request: Request, schema: S, f
 		raw[k] = seen === undefined ? v : Array.isArray(seen) ? [...seen, v] : [seen, v];
 	}
 	const values = Object.fromEntries(
-		Object.entries(raw).filter(([k]) => !SECRET_FIELDS.has(k)).map(([k, v]) => [k, Array.isArray(v) ? v.join(', ') : v])
+		Object.entries(raw)
+			.filter(([k]) => !SECRET_FIELDS.has(k))
+			.map(([k, v]) => [k, Array.isArray(v) ? v.join(', ') : v])
 	);
 	const parsed = schema.safeParse(raw);
 	if (!parsed.success) {
@@ -98,4 +101,27 @@ export async function act<S extends z.ZodType, R>(request: Request, schema: S, f
 		if (e instanceof DomainError) return fail(e.status, { message: e.message, issues: e.issues ?? [], values });
 		throw e;
 	}
+}
+
+/** Reads an upload body, refusing it as soon as it passes `maxBytes` (with or without Content-Length). */
+export async function readUpload(request: Request, maxBytes = IMAGE_LIMITS.maxBytes): Promise<Buffer> {
+	const tooLarge = () =>
+		new DomainError(413, 'too_large', `The file is over ${Math.round(maxBytes / 1024 / 1024)} MB.`);
+	const declared = Number(request.headers.get('content-length') ?? NaN);
+	if (declared > maxBytes) throw tooLarge();
+	if (!request.body) throw new DomainError(422, 'empty_file', 'The file is empty.');
+	const chunks: Uint8Array[] = [];
+	let total = 0;
+	const reader = request.body.getReader();
+	for (;;) {
+		const { done, value } = await reader.read();
+		if (done) break;
+		total += value.byteLength;
+		if (total > maxBytes) {
+			await reader.cancel();
+			throw tooLarge();
+		}
+		chunks.push(value);
+	}
+	return Buffer.concat(chunks);
 }

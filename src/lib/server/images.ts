@@ -64,6 +64,9 @@ function refuseActiveSvg(text: string) {
 	}
 }
 
+const unsupported = () =>
+	new DomainError(415, 'unsupported_type', 'Upload a PNG, JPEG, WebP, TIFF or SVG image, or a PDF page.');
+
 function readError(e: unknown): never {
 	const message = e instanceof Error ? e.message : String(e);
 	if (/pixel limit/i.test(message)) {
@@ -73,6 +76,7 @@ function readError(e: unknown): never {
 			`The image is larger than ${Math.round(IMAGE_LIMITS.maxPixels / 1e6)} megapixels. Scale it down and try again.`
 		);
 	}
+	if (/unsupported image format/i.test(message)) throw unsupported();
 	throw new DomainError(422, 'unreadable_image', 'The file is not a readable image, or it is damaged or cut short.');
 }
 
@@ -93,9 +97,7 @@ export async function processImage(bytes: Buffer): Promise<ProcessedImage> {
 	}
 	const format = meta.format ?? '';
 	const type = ACCEPTED.get(format);
-	if (!type || (format === 'svg') !== isSvg) {
-		throw new DomainError(415, 'unsupported_type', 'Upload a PNG, JPEG, WebP, TIFF or SVG image, or a PDF page.');
-	}
+	if (!type || (format === 'svg') !== isSvg) throw unsupported();
 
 	try {
 		// Drawings often have a transparent background; the canvas wants paper white.

@@ -12,7 +12,10 @@ async function requireAll(found: { id: string }[], ids: string[], what: string) 
 
 export async function requireParts(orgId: string, ids: string[]) {
 	if (ids.length === 0) return;
-	const rows = await db().select({ id: part.id }).from(part).where(and(eq(part.organizationId, orgId), inArray(part.id, ids)));
+	const rows = await db()
+		.select({ id: part.id })
+		.from(part)
+		.where(and(eq(part.organizationId, orgId), inArray(part.id, ids)));
 	await requireAll(rows, ids, 'parts');
 }
 

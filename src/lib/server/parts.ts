@@ -58,7 +58,13 @@ export async function createPart(access: Access, input: PartInput) {
 				.insert(part)
 				.values({ organizationId: access.org.id, ...input })
 				.returning(fields);
-			await audit(tx, access, { action: 'part.create', subject: 'part', subjectId: row!.id, before: null, after: input });
+			await audit(tx, access, {
+				action: 'part.create',
+				subject: 'part',
+				subjectId: row!.id,
+				before: null,
+				after: input
+			});
 			return row!;
 		});
 	} catch (e) {
@@ -85,7 +91,12 @@ export async function updatePart(access: Access, partId: string, patch: z.infer<
 			const [row] = await tx.update(part).set(values).where(eq(part.id, partId)).returning(fields);
 			const diff = changedFields(before, snapshot(row!));
 			if (diff.any) {
-				const action = archived === true && !current.archivedAt ? 'part.archive' : archived === false && current.archivedAt ? 'part.restore' : 'part.update';
+				const action =
+					archived === true && !current.archivedAt
+						? 'part.archive'
+						: archived === false && current.archivedAt
+							? 'part.restore'
+							: 'part.update';
 				await audit(tx, access, { action, subject: 'part', subjectId: partId, before: diff.from, after: diff.to });
 			}
 			return row!;

@@ -31,7 +31,13 @@ export async function setPlan(access: Access, partId: string, input: SamplingPla
 			.onConflictDoUpdate({ target: samplingPlan.partId, set: { ...values, updatedAt: new Date() } });
 		const diff = changedFields(before ?? {}, { partId, ...values });
 		if (diff.any) {
-			await audit(tx, access, { action: 'plan.set', subject: 'part', subjectId: partId, before: before ? diff.from : null, after: diff.to });
+			await audit(tx, access, {
+				action: 'plan.set',
+				subject: 'part',
+				subjectId: partId,
+				before: before ? diff.from : null,
+				after: diff.to
+			});
 		}
 	});
 	return getPlan(access.org.id, partId);

@@ -8,6 +8,7 @@ import {
 	DeleteObjectsCommand,
 	GetObjectCommand,
 	HeadBucketCommand,
+	ListObjectsV2Command,
 	PutObjectCommand,
 	S3Client
 } from '@aws-sdk/client-s3';
@@ -94,4 +95,18 @@ export async function startLocalS3(directory: string): Promise<LocalS3> {
 	});
 	const { port } = await server.run();
 	return { endpoint: `http://127.0.0.1:${port}`, stop: () => server.close() };
+}
+
+/** Keys under a prefix (for checks that nothing was left behind). */
+export async function listKeys(prefix: string): Promise<string[]> {
+	const keys: string[] = [];
+	let token: string | undefined;
+	do {
+		const res = await s3().send(
+			new ListObjectsV2Command({ Bucket: bucket(), Prefix: prefix, ContinuationToken: token })
+		);
+		for (const o of res.Contents ?? []) if (o.Key) keys.push(o.Key);
+		token = res.IsTruncated ? res.NextContinuationToken : undefined;
+	} while (token);
+	return keys;
 }

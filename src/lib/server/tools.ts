@@ -32,7 +32,13 @@ export async function createTool(access: Access, input: ToolInput) {
 				.values({ ...values, organizationId: access.org.id })
 				.returning({ id: tool.id });
 			if (partIds.length) await tx.insert(toolPart).values(partIds.map((partId) => ({ toolId: row!.id, partId })));
-			await audit(tx, access, { action: 'tool.create', subject: 'tool', subjectId: row!.id, before: null, after: input });
+			await audit(tx, access, {
+				action: 'tool.create',
+				subject: 'tool',
+				subjectId: row!.id,
+				before: null,
+				after: input
+			});
 			return row!;
 		});
 	} catch (e) {
@@ -48,17 +54,35 @@ export async function updateTool(access: Access, toolId: string, patch: z.infer<
 	try {
 		await db().transaction(async (tx) => {
 			if (Object.keys(values).length) {
-				await tx.update(tool).set(values).where(and(eq(tool.id, toolId), eq(tool.organizationId, access.org.id)));
+				await tx
+					.update(tool)
+					.set(values)
+					.where(and(eq(tool.id, toolId), eq(tool.organizationId, access.org.id)));
 			}
-			const beforeParts = (await tx.select().from(toolPart).where(eq(toolPart.toolId, toolId))).map((l) => l.partId).sort();
+			const beforeParts = (await tx.select().from(toolPart).where(eq(toolPart.toolId, toolId)))
+				.map((l) => l.partId)
+				.sort();
 			if (partIds) {
 				await tx.delete(toolPart).where(eq(toolPart.toolId, toolId));
 				if (partIds.length) await tx.insert(toolPart).values(partIds.map((partId) => ({ toolId, partId })));
 			}
-			const before = { code: current.code, name: current.name, kind: current.kind, cavityCount: current.cavityCount, partIds: beforeParts };
+			const before = {
+				code: current.code,
+				name: current.name,
+				kind: current.kind,
+				cavityCount: current.cavityCount,
+				partIds: beforeParts
+			};
 			const after = { ...before, ...values, ...(partIds ? { partIds: [...partIds].sort() } : {}) };
 			const diff = changedFields(before, after);
-			if (diff.any) await audit(tx, access, { action: 'tool.update', subject: 'tool', subjectId: toolId, before: diff.from, after: diff.to });
+			if (diff.any)
+				await audit(tx, access, {
+					action: 'tool.update',
+					subject: 'tool',
+					subjectId: toolId,
+					before: diff.from,
+					after: diff.to
+				});
 		});
 	} catch (e) {
 		if (isUniqueViolation(e)) throw conflict(`Tool code ${patch.code} is in use already.`);

@@ -67,7 +67,8 @@ export function polygonArea(points: readonly Point[]): number {
 }
 
 function segmentsCross(a: Point, b: Point, c: Point, d: Point): boolean {
-	const orient = (p: Point, q: Point, r: Point) => Math.sign((q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0]));
+	const orient = (p: Point, q: Point, r: Point) =>
+		Math.sign((q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0]));
 	const o1 = orient(a, b, c);
 	const o2 = orient(a, b, d);
 	const o3 = orient(c, d, a);

@@ -69,7 +69,9 @@ export const samplingPlan = pgTable('sampling_plan', {
 		.notNull()
 		.references(() => organization.id, { onDelete: 'cascade' }),
 	/** 'units': n whole pieces; 'area': an inspection unit of `unitSize` `unitName` (e.g. 0.5 m²). */
-	basis: text({ enum: ['units', 'area'] }).notNull().default('units'),
+	basis: text({ enum: ['units', 'area'] })
+		.notNull()
+		.default('units'),
 	sampleSize: doublePrecision().notNull(),
 	unitName: text().notNull().default('unit'),
 	frequency: text({ enum: ['shift', 'lot', 'hours'] }).notNull(),
