@@ -27,7 +27,10 @@ export default ts.config(
 		},
 		rules: {
 			'@typescript-eslint/no-floating-promises': 'error',
-			'@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_', destructuredArrayIgnorePattern: '^_' }],
+			'@typescript-eslint/no-unused-vars': [
+				'error',
+				{ argsIgnorePattern: '^_', varsIgnorePattern: '^_', destructuredArrayIgnorePattern: '^_' }
+			],
 			'no-undef': 'off',
 			// Stipple is served at the root (no paths.base), so plain hrefs are already resolved.
 			'svelte/no-navigation-without-resolve': 'off'

@@ -195,17 +195,15 @@ export async function addRevision(access: Access, viewId: string, bytes: Buffer,
 				.where(eq(viewRevision.id, row.id));
 			const carried = await tx.select().from(region).where(eq(region.revisionId, previous.id));
 			if (carried.length) {
-				await tx
-					.insert(region)
-					.values(
-						carried.map((r) => ({
-							organizationId: r.organizationId,
-							revisionId: row.id,
-							name: r.name,
-							points: r.points,
-							area: r.area
-						}))
-					);
+				await tx.insert(region).values(
+					carried.map((r) => ({
+						organizationId: r.organizationId,
+						revisionId: row.id,
+						name: r.name,
+						points: r.points,
+						area: r.area
+					}))
+				);
 			}
 		}
 		await audit(tx, access, {
