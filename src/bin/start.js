@@ -58,7 +58,9 @@ const env = {
 	PORT: port,
 	HOST: host,
 	ORIGIN: process.env.ORIGIN ?? `http://${host}:${port}`,
-	NODE_NO_WARNINGS: '1'
+	NODE_NO_WARNINGS: '1',
+	// Drawings can be large; the upload route checks its own, lower limit.
+	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '64M'
 };
 const app = spawn(process.execPath, ['build/index.js'], { stdio: 'inherit', env });
 for (const signal of /** @type {const} */ (['SIGINT', 'SIGTERM'])) process.on(signal, () => app.kill(signal));

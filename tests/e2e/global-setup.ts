@@ -28,6 +28,7 @@ export default async function globalSetup() {
 			...process.env,
 			NODE_ENV: 'production',
 			NODE_NO_WARNINGS: '1',
+			BODY_SIZE_LIMIT: '64M',
 			HOST: '127.0.0.1',
 			PORT: String(port),
 			ORIGIN: url,

@@ -2,7 +2,9 @@ import { describe, expect, it } from 'vitest';
 import { count, eq } from 'drizzle-orm';
 import { db, migrateDb } from '../../src/lib/server/db';
 import { member, organization, part, partView, tool, viewRevision } from '../../src/lib/server/db/schema';
-import { revisionImage } from '../../src/lib/server/drawings';
+import { getRevision, revisionImage } from '../../src/lib/server/drawings';
+import { listDefectTypes } from '../../src/lib/server/defects';
+import { getPlan } from '../../src/lib/server/plans';
 import sharp from 'sharp';
 import { DEMO_ORG, DEMO_USERS, seedDemoOnce } from '../../src/lib/server/seed';
 import { signIn } from '../../src/lib/server/accounts';
@@ -40,6 +42,17 @@ describe('start-up steps', () => {
 		const bytes = Buffer.from(await new Response(image.body).arrayBuffer());
 		const meta = await sharp(bytes).metadata();
 		expect([meta.format, meta.width, meta.height]).toEqual(['webp', 320, 200]);
+
+		// A grid and three regions on the front view, a catalogue of eight types, a sampling plan.
+		const detail = await getRevision(org!.id, front!.id);
+		expect([detail.gridColumns, detail.gridRows]).toEqual([8, 5]);
+		expect(detail.regions.map((r) => r.name)).toEqual(['Boss 1', 'Gate side', 'Louvre field']);
+		// Gate side: 1000 × 150 px of a 1600 × 1000 image.
+		expect(detail.regions.find((r) => r.name === 'Gate side')?.area).toBeCloseTo((1000 * 150) / (1600 * 1000), 12);
+		const types = await listDefectTypes(org!.id);
+		expect(types).toHaveLength(8);
+		expect(new Set(types.map((t) => `${t.colour}/${t.shape}`)).size).toBe(8);
+		expect((await getPlan(org!.id, parts[0]!.id))?.sampleSize).toBe(5);
 	});
 
 	it('lets every demo user sign in with the printed password', async () => {

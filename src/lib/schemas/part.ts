@@ -32,3 +32,5 @@ export const partQuerySchema = z.object({
 export const viewSchema = z.object({ name: text(60, 'View name') });
 
 export type PartInput = z.infer<typeof partSchema>;
+
+export const partRefSchema = z.object({ partId: z.uuid('Not a valid id.') });

@@ -25,3 +25,15 @@ export const samplingPlanSchema = z
 	});
 
 export type SamplingPlanInput = z.infer<typeof samplingPlanSchema>;
+
+/** The same plan as a page form sends it: checkboxes, repeated names, empty number fields. */
+export const samplingPlanFormSchema = z.preprocess((raw) => {
+	const v = (raw ?? {}) as Record<string, unknown>;
+	const list = v.defectTypeIds;
+	return {
+		...v,
+		everyHours: v.everyHours === '' || v.everyHours === undefined ? null : v.everyHours,
+		defectTypeIds: list === undefined || list === '' ? [] : Array.isArray(list) ? list : [list],
+		photoForSevere: v.photoForSevere === 'on' || v.photoForSevere === 'true'
+	};
+}, samplingPlanSchema);

@@ -4,12 +4,28 @@
  * database, in one transaction, so a half-seeded demo never exists.
  */
 import { randomUUID } from 'node:crypto';
-import { sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import type { Role } from '$lib/roles';
 import { auth } from './auth';
 import { DEMO_PASSWORD } from './config';
 import { db } from './db';
-import { account, appSetting, member, organization, part, partView, tool, toolPart, user } from './db/schema';
+import {
+	account,
+	appSetting,
+	defectType,
+	member,
+	organization,
+	part,
+	partView,
+	region,
+	samplingPlan,
+	tool,
+	toolPart,
+	user,
+	viewRevision
+} from './db/schema';
+import { polygonArea, type Point } from '$lib/spatial/zones';
+import type { MarkerColour, MarkerShape, Severity } from '$lib/markers';
 import { frontViewSvg, sectionViewSvg } from './demo-drawing';
 import { storeRevision } from './drawings';
 import { processImage } from './images';
@@ -25,6 +41,91 @@ export const DEMO_USERS: { name: string; email: string; role: Role }[] = [
 ];
 
 const SEEDED_KEY = 'demo_seeded';
+
+/** The demo catalogue: invented codes and names for common moulding defects. */
+const DEMO_TYPES: {
+	code: string;
+	name: string;
+	description: string;
+	colour: MarkerColour;
+	shape: MarkerShape;
+	severity: Severity;
+}[] = [
+	{
+		code: 'SS',
+		name: 'Short shot',
+		description: 'The cavity did not fill; a rib or edge is missing.',
+		colour: 'rust',
+		shape: 'triangle',
+		severity: 'B'
+	},
+	{
+		code: 'SK',
+		name: 'Sink mark',
+		description: 'A shallow dip over a thick section or boss.',
+		colour: 'cobalt',
+		shape: 'dot',
+		severity: 'C'
+	},
+	{
+		code: 'FL',
+		name: 'Flash',
+		description: 'Thin extra material at the parting line.',
+		colour: 'amber',
+		shape: 'diamond',
+		severity: 'C'
+	},
+	{
+		code: 'WL',
+		name: 'Weld line',
+		description: 'A visible line where two flow fronts met.',
+		colour: 'teal',
+		shape: 'square',
+		severity: 'D'
+	},
+	{
+		code: 'SC',
+		name: 'Scratch',
+		description: 'A mark on the show face from handling or the tool.',
+		colour: 'sky',
+		shape: 'cross',
+		severity: 'D'
+	},
+	{
+		code: 'BM',
+		name: 'Burn mark',
+		description: 'Dark or brown streaks from trapped, overheated gas.',
+		colour: 'graphite',
+		shape: 'star',
+		severity: 'B'
+	},
+	{
+		code: 'CT',
+		name: 'Contamination',
+		description: 'A foreign particle or colour speck in the part.',
+		colour: 'orchid',
+		shape: 'hexagon',
+		severity: 'A'
+	},
+	{
+		code: 'FM',
+		name: 'Flow marks',
+		description: 'Wavy lines or rings near the gate.',
+		colour: 'lemon',
+		shape: 'ring',
+		severity: 'D'
+	}
+];
+
+/** Regions on the front view (image 1600 × 1000; the plate spans x 200–1200, y 150–770). */
+const px = (x: number, y: number): Point => [x / 1600, y / 1000];
+const octagon = (cx: number, cy: number, r: number): Point[] =>
+	Array.from({ length: 8 }, (_, i) => px(cx + r * Math.cos((i * Math.PI) / 4), cy + r * Math.sin((i * Math.PI) / 4)));
+const DEMO_REGIONS: { name: string; points: Point[] }[] = [
+	{ name: 'Gate side', points: [px(200, 620), px(1200, 620), px(1200, 770), px(200, 770)] },
+	{ name: 'Louvre field', points: [px(310, 260), px(1090, 260), px(1090, 660), px(310, 660)] },
+	{ name: 'Boss 1', points: octagon(270, 220, 48) }
+];
 
 /** Seeds the demo unless this database has had it before. Returns whether it seeded now. */
 export async function seedDemoOnce(): Promise<boolean> {
@@ -89,10 +190,36 @@ export async function seedDemoOnce(): Promise<boolean> {
 				{ organizationId: orgId, partId: grille.id, name: 'Section A–A', position: 1 }
 			])
 			.returning({ id: partView.id });
+		const revisions = [];
 		for (const [i, view] of views.entries()) {
 			const owner = { organizationId: orgId, viewId: view.id, userId: null };
-			await storeRevision(owner, drawings[i]!, 'Drawn for the demo.', tx);
+			revisions.push(await storeRevision(owner, drawings[i]!, 'Drawn for the demo.', tx));
 		}
+		const front = revisions[0]!;
+		await tx.update(viewRevision).set({ gridColumns: 8, gridRows: 5 }).where(eq(viewRevision.id, front.id));
+		await tx.insert(region).values(
+			DEMO_REGIONS.map((r) => ({
+				organizationId: orgId,
+				revisionId: front.id,
+				name: r.name,
+				points: r.points,
+				area: polygonArea(r.points)
+			}))
+		);
+		const types = await tx
+			.insert(defectType)
+			.values(DEMO_TYPES.map((t, position) => ({ ...t, organizationId: orgId, position })))
+			.returning({ id: defectType.id });
+		await tx.insert(samplingPlan).values({
+			partId: grille.id,
+			organizationId: orgId,
+			basis: 'units',
+			sampleSize: 5,
+			frequency: 'hours',
+			everyHours: 2,
+			defectTypeIds: types.map((t) => t.id),
+			photoForSevere: true
+		});
 		return true;
 	});
 }
