@@ -1,0 +1,84 @@
+import { expect, test, type Page } from '@playwright/test';
+import sharp from 'sharp';
+import { shoot, signIn } from './helpers';
+
+async function drawingPng() {
+	// A plain invented outline: a plate with two holes, drawn for this test.
+	const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="1200" height="800"><rect width="1200" height="800" fill="#fff"/>
+		<rect x="100" y="100" width="1000" height="600" rx="40" fill="none" stroke="#222" stroke-width="8"/>
+		<circle cx="300" cy="400" r="60" fill="none" stroke="#222" stroke-width="6"/><circle cx="900" cy="400" r="60" fill="none" stroke="#222" stroke-width="6"/></svg>`;
+	return sharp(Buffer.from(svg)).png().toBuffer();
+}
+
+/** Taps the drawing where a person would: it must be on screen (the page scrolls it into view). */
+async function tapCanvas(page: Page, fx: number, fy: number) {
+	const canvas = page.getByTestId('drawing-canvas').locator('canvas').first();
+	await expect(canvas).toBeInViewport({ ratio: 1 });
+	const box = await canvas.boundingBox();
+	if (!box) throw new Error('no canvas');
+	await page.mouse.click(box.x + fx * box.width, box.y + fy * box.height);
+}
+
+test('an engineer creates a part, uploads its drawing, sets a 6 × 4 grid and draws a region', async ({ page }) => {
+	const number = `BR-${Date.now().toString(36).toUpperCase()}`;
+	await signIn(page, 'engineer@example.com');
+	await page.goto('/setup/parts');
+	await page.getByRole('button', { name: 'New part' }).click();
+	await page.getByLabel('Part number').fill(number);
+	await page.getByLabel('Name', { exact: true }).fill('Mounting bracket');
+	await page.getByLabel('Material', { exact: true }).fill('PA66 GF30');
+	await page.getByRole('button', { name: 'Create the part' }).click();
+	await expect(page.getByRole('heading', { name: `${number} · Mounting bracket` })).toBeVisible();
+
+	await page.getByLabel('Add a view').fill('Front');
+	await page.getByRole('button', { name: 'Add view' }).click();
+	await expect(page.getByText('View added.')).toBeVisible();
+
+	await page
+		.getByLabel('New drawing for Front')
+		.setInputFiles({ name: 'bracket-front.png', mimeType: 'image/png', buffer: await drawingPng() });
+	await page.getByRole('button', { name: 'Upload' }).click();
+	await expect(page.getByText('Revision A')).toBeVisible();
+	await shoot(page, 'engineer-part');
+
+	await page.getByRole('link', { name: 'Zones and regions' }).click();
+	await page.getByLabel('Columns (1, 2, 3 …)').fill('6');
+	await page.getByLabel('Rows (A, B, C …)').fill('4');
+	await page.getByRole('button', { name: 'Save the grid' }).click();
+	await expect(page.getByText('Grid saved.')).toBeVisible();
+
+	await expect(page.getByTestId('drawing-canvas')).toHaveAttribute('data-ready', 'yes');
+	await page.getByRole('button', { name: 'Draw a new region' }).click();
+	for (const [x, y] of [
+		[0.15, 0.2],
+		[0.45, 0.2],
+		[0.45, 0.8],
+		[0.15, 0.8]
+	]) {
+		await tapCanvas(page, x!, y!);
+	}
+	await expect(page.getByText('4 corners so far.')).toBeVisible();
+	await page.getByLabel('Name of the region').fill('Left hole');
+	await page.getByRole('button', { name: 'Close the outline and save' }).click();
+	// 0.30 × 0.60 of the drawing: 18 % of its area (within a pixel or two of the taps).
+	await expect(page.getByRole('button', { name: /Left hole · 1[78]\.\d % of the drawing/ })).toBeVisible();
+	await shoot(page, 'engineer-zones');
+
+	// The server derived everything from normalised coordinates: check through the API.
+	const revisionId = page.url().split('/').pop()!;
+	const rev = (await (await page.request.get(`/api/v1/revisions/${revisionId}`)).json()).revision;
+	expect([rev.gridColumns, rev.gridRows]).toEqual([6, 4]);
+	expect(rev.regions).toHaveLength(1);
+	expect(rev.regions[0].area).toBeGreaterThan(0.16);
+	expect(rev.regions[0].area).toBeLessThan(0.2);
+});
+
+test('readers see Setup but cannot change it', async ({ page }) => {
+	await signIn(page, 'viewer@example.com');
+	await page.goto('/setup/parts');
+	await expect(page.getByRole('button', { name: 'New part' })).toHaveCount(0);
+	await page.getByRole('link', { name: 'FW-118' }).click();
+	await expect(page.getByRole('button', { name: 'Save the plan' })).toHaveCount(0);
+	await expect(page.getByText('5 units per sample')).toBeVisible();
+	await shoot(page, 'viewer-part');
+});
