@@ -1,7 +1,15 @@
 import sharp from 'sharp';
 import { describe, expect, it } from 'vitest';
 import { count, eq } from 'drizzle-orm';
-import { addRegion, addRevision, createView, getRevision, revisionImage, setGrid } from '../../src/lib/server/drawings';
+import {
+	addRegion,
+	addRevision,
+	createView,
+	getRevision,
+	locate,
+	revisionImage,
+	setGrid
+} from '../../src/lib/server/drawings';
 import { db } from '../../src/lib/server/db';
 import { viewRevision } from '../../src/lib/server/db/schema';
 import { IMAGE_LIMITS } from '../../src/lib/server/images';
@@ -116,5 +124,25 @@ describe('drawing uploads', () => {
 			[0, 1]
 		];
 		await expectDomainError(addRegion(access, rev.id, { name: 'twisted', points: bowTie }), 422, 'invalid_outline');
+	});
+
+	it("derives a point's zone and regions on the server", async () => {
+		const { access, view } = await setUp('locate');
+		const rev = await addRevision(access, view.id, await good.webp());
+		expect(await locate(access.org.id, rev.id, [0.5, 0.5])).toEqual({ zone: null, regions: [] });
+		await setGrid(access, rev.id, { columns: 6, rows: 4 });
+		await addRegion(access, rev.id, {
+			name: 'left half',
+			points: [
+				[0, 0],
+				[0.5, 0],
+				[0.5, 1],
+				[0, 1]
+			]
+		});
+		expect(await locate(access.org.id, rev.id, [0.1, 0.1])).toEqual({ zone: 'A1', regions: ['left half'] });
+		// On the region's right edge (x = 0.5): inside. Zone C4: column 4 of 6, row C of 4.
+		expect(await locate(access.org.id, rev.id, [0.5, 0.6])).toEqual({ zone: 'C4', regions: ['left half'] });
+		expect(await locate(access.org.id, rev.id, [0.99, 0.99])).toEqual({ zone: 'D6', regions: [] });
 	});
 });

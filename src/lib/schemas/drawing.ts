@@ -31,3 +31,8 @@ export const regionPatchSchema = regionSchema.partial();
 export const revisionNoteSchema = z.object({
 	note: z.string().trim().max(300, 'The note is at most 300 characters.').default('')
 });
+
+export const locateQuerySchema = z.object({
+	x: z.coerce.number({ error: 'x is a number.' }).min(0, 'x is 0 to 1.').max(1, 'x is 0 to 1.'),
+	y: z.coerce.number({ error: 'y is a number.' }).min(0, 'y is 0 to 1.').max(1, 'y is 0 to 1.')
+});

@@ -1,7 +1,7 @@
 /** Views of a part's drawing and their revisions (images kept in object storage). */
 import { randomUUID } from 'node:crypto';
 import { and, asc, desc, eq, inArray, max, sql } from 'drizzle-orm';
-import { isSimplePolygon, polygonArea, type Point } from '$lib/spatial/zones';
+import { isSimplePolygon, polygonArea, regionsOf, zoneOf, type Point } from '$lib/spatial/zones';
 import type { Access } from './access';
 import { audit } from './audit';
 import { db, isUniqueViolation, type Db } from './db';
@@ -347,4 +347,14 @@ export async function deleteRegion(access: Access, regionId: string) {
 			after: null
 		});
 	});
+}
+
+/**
+ * Where a point of a drawing is: its grid zone (if the revision has a grid) and the regions that
+ * hold it. Pins get theirs from here when they are written, so every client agrees.
+ */
+export async function locate(orgId: string, revisionId: string, point: Point) {
+	const rev = await getRevision(orgId, revisionId);
+	const zone = rev.gridColumns && rev.gridRows ? zoneOf(point, rev.gridColumns, rev.gridRows).label : null;
+	return { zone, regions: regionsOf(point, rev.regions) };
 }
