@@ -52,7 +52,13 @@ test('fits a 768 px tablet in portrait without sideways scrolling', async ({ bro
 	const tablet = await browser.newContext({ viewport: { width: 768, height: 1024 }, hasTouch: true });
 	const page = await tablet.newPage();
 	await signIn(page, 'admin@example.com');
-	for (const p of ['/', '/team', '/bench']) {
+	await page.goto('/setup/parts');
+	await page.getByRole('link', { name: 'FW-118' }).click();
+	const partPage = page.url();
+	await page.getByRole('link', { name: 'Zones and regions' }).first().click();
+	await expect(page.getByTestId('drawing-canvas')).toHaveAttribute('data-ready', 'yes');
+	const drawingPage = page.url();
+	for (const p of ['/', '/team', '/bench', '/setup', '/setup/parts', partPage, drawingPage]) {
 		await page.goto(p);
 		const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
 		expect(overflow, p).toBeLessThanOrEqual(0);
