@@ -1,14 +1,13 @@
 /** What an organisation makes and makes it with: parts and the tools (dies, moulds, fixtures). */
 import { index, integer, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
-import { organization, user } from '../auth.schema';
+import { organizationId } from './columns';
+import { user } from '../auth.schema';
 
 export const part = pgTable(
 	'part',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		number: text().notNull(),
 		name: text().notNull(),
 		material: text().notNull().default(''),
@@ -24,9 +23,7 @@ export const tool = pgTable(
 	'tool',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		code: text().notNull(),
 		name: text().notNull(),
 		kind: text({ enum: ['die', 'mould', 'fixture'] }).notNull(),
@@ -54,9 +51,7 @@ export const partView = pgTable(
 	'part_view',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		partId: uuid()
 			.notNull()
 			.references(() => part.id, { onDelete: 'cascade' }),
@@ -75,9 +70,7 @@ export const viewRevision = pgTable(
 	'view_revision',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		viewId: uuid()
 			.notNull()
 			.references(() => partView.id, { onDelete: 'cascade' }),

@@ -12,6 +12,7 @@ import {
 	uniqueIndex,
 	uuid
 } from 'drizzle-orm/pg-core';
+import { organizationId } from './columns';
 import { organization } from '../auth.schema';
 import { part, viewRevision } from './catalogue';
 
@@ -19,9 +20,7 @@ export const defectType = pgTable(
 	'defect_type',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		code: text().notNull(),
 		name: text().notNull(),
 		description: text().notNull().default(''),
@@ -65,9 +64,7 @@ export const samplingPlan = pgTable('sampling_plan', {
 	partId: uuid()
 		.primaryKey()
 		.references(() => part.id, { onDelete: 'cascade' }),
-	organizationId: text()
-		.notNull()
-		.references(() => organization.id, { onDelete: 'cascade' }),
+	organizationId: organizationId(),
 	/** 'units': n whole pieces; 'area': an inspection unit of `unitSize` `unitName` (e.g. 0.5 m²). */
 	basis: text({ enum: ['units', 'area'] })
 		.notNull()
@@ -87,9 +84,7 @@ export const region = pgTable(
 	'region',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		revisionId: uuid()
 			.notNull()
 			.references(() => viewRevision.id, { onDelete: 'cascade' }),

@@ -1,6 +1,7 @@
 /** Tables that keep the system itself running: mail caught in development, throttles, audit. */
 import { index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
-import { organization, user } from '../auth.schema';
+import { organizationId } from './columns';
+import { user } from '../auth.schema';
 
 /** Messages kept by the local mail catcher when no SMTP_URL is set. */
 export const caughtMail = pgTable(
@@ -29,9 +30,7 @@ export const auditEntry = pgTable(
 	'audit_entry',
 	{
 		id: uuid().primaryKey().defaultRandom(),
-		organizationId: text()
-			.notNull()
-			.references(() => organization.id, { onDelete: 'cascade' }),
+		organizationId: organizationId(),
 		actorId: text().references(() => user.id, { onDelete: 'set null' }),
 		action: text().notNull(),
 		subject: text().notNull(),
