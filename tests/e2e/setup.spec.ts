@@ -71,6 +71,46 @@ test('an engineer creates a part, uploads its drawing, sets a 6 × 4 grid and dr
 	expect(rev.regions).toHaveLength(1);
 	expect(rev.regions[0].area).toBeGreaterThan(0.16);
 	expect(rev.regions[0].area).toBeLessThan(0.2);
+
+	// A defect type that applies to this part only, and a two-cavity die that makes it.
+	const code = `K${Date.now().toString(36).slice(-4).toUpperCase()}`;
+	await page.goto('/setup/defects');
+	await page.getByRole('link', { name: 'New defect type' }).click();
+	await page.getByLabel('Code').fill(code);
+	await page.getByLabel('Name', { exact: true }).fill('Knit line crack');
+	await page.getByRole('radio', { name: 'Rust' }).check();
+	await page.getByRole('radio', { name: 'Star' }).check();
+	await page.getByRole('radio', { name: /^B · serious/ }).check();
+	await page.getByRole('checkbox', { name: 'All parts' }).uncheck();
+	await page.getByRole('checkbox', { name: new RegExp(number) }).check();
+	await page.getByRole('button', { name: 'Add to the catalogue' }).click();
+	await expect(page.getByText('Knit line crack').first()).toBeVisible();
+	await shoot(page, 'engineer-defects');
+
+	await page.goto('/setup/tools');
+	await page.getByRole('link', { name: 'New tool' }).click();
+	await page.getByLabel('Tool number').fill(`D-${code}`);
+	await page.getByLabel('Name', { exact: true }).fill('Bracket die');
+	await page.getByRole('radio', { name: /^Die/ }).check();
+	await page.getByLabel('Cavities', { exact: true }).fill('2');
+	await page.getByRole('checkbox', { name: new RegExp(number) }).check();
+	await page.getByRole('button', { name: 'Add the tool' }).click();
+	await expect(page.getByText('Bracket die').first()).toBeVisible();
+	await shoot(page, 'engineer-tools');
+
+	const tools = (await (await page.request.get('/api/v1/tools')).json()).tools as {
+		code: string;
+		cavityCount: number;
+		parts: string[];
+	}[];
+	expect(tools.find((t) => t.code === `D-${code}`)).toMatchObject({ cavityCount: 2, parts: [number] });
+	const types = (await (await page.request.get('/api/v1/defect-types')).json()).defectTypes as {
+		code: string;
+		allParts: boolean;
+		partNumbers: string[];
+		severity: string;
+	}[];
+	expect(types.find((t) => t.code === code)).toMatchObject({ allParts: false, partNumbers: [number], severity: 'B' });
 });
 
 test('readers see Setup but cannot change it', async ({ page }) => {

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { COLOUR_KEYS, SEVERITIES, SHAPE_KEYS } from '$lib/markers';
-import { text } from './common';
+import { formBool, formList, text } from './common';
 
 const uuid = z.uuid('Not a valid id.');
 
@@ -23,10 +23,40 @@ export const reorderSchema = z.object({
 	ids: z.array(uuid).min(1, 'Give the types in their new order.').max(500)
 });
 
-const weight = z.coerce
+const weight = z
 	.number({ error: 'A weight is a number.' })
 	.min(0, 'Weights are not negative.')
 	.max(10_000, 'Weights are at most 10,000.');
 export const weightsSchema = z.object({ a: weight, b: weight, c: weight, d: weight });
 
 export type DefectTypeInput = z.infer<typeof defectTypeSchema>;
+
+// Page forms send text: a checkbox is "on" or absent, a group of checkboxes is one name sent several times.
+// Codes are capitals; a tablet keyboard often starts in lower case, so the form takes either.
+const defectTypeForm = defectTypeSchema.extend({
+	code: z.preprocess((v) => (typeof v === 'string' ? v.toUpperCase() : v), defectTypeSchema.shape.code),
+	allParts: formBool,
+	partIds: formList(uuid)
+});
+const needsParts = (v: { allParts: boolean; partIds: string[] }) => v.allParts || v.partIds.length > 0;
+const needsPartsIssue = { path: ['partIds'], message: 'Tick the parts this type applies to, or tick All parts.' };
+
+export const defectTypeFormSchema = defectTypeForm.refine(needsParts, needsPartsIssue);
+export const defectTypeEditFormSchema = defectTypeForm
+	.extend({ defectTypeId: uuid })
+	.refine(needsParts, needsPartsIssue);
+export const defectTypeRefSchema = z.object({ defectTypeId: uuid });
+export const defectTypeMoveSchema = z.object({
+	defectTypeId: uuid,
+	direction: z.enum(['up', 'down'], { error: 'Move a type up or down.' })
+});
+
+// A form sends text. An empty box must not count as a weight of 0, as Number('') would.
+const formWeight = z.preprocess((v, ctx) => {
+	if (typeof v === 'string' && v.trim() === '') {
+		ctx.addIssue({ code: 'custom', message: 'Give a weight for this class.' });
+		return z.NEVER;
+	}
+	return typeof v === 'string' ? Number(v) : v;
+}, weight);
+export const weightsFormSchema = z.object({ a: formWeight, b: formWeight, c: formWeight, d: formWeight });

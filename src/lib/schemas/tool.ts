@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { text } from './common';
+import { formList, text } from './common';
 
 export const TOOL_KINDS = ['die', 'mould', 'fixture'] as const;
 
@@ -17,3 +17,7 @@ export const toolSchema = z.object({
 
 export const toolPatchSchema = toolSchema.partial();
 export type ToolInput = z.infer<typeof toolSchema>;
+
+/** The page form: the parts a tool makes come as one checkbox name sent several times. */
+export const toolFormSchema = toolSchema.extend({ partIds: formList(z.uuid('Not a valid id.')) });
+export const toolEditFormSchema = toolFormSchema.extend({ toolId: z.uuid('Not a valid id.') });

@@ -109,10 +109,12 @@ export async function updateDefectType(access: Access, id: string, patch: z.infe
 			const beforeParts = (await tx.select().from(defectTypePart).where(eq(defectTypePart.defectTypeId, id))).map(
 				(l) => l.partId
 			);
-			if (partIds) {
+			// A type for every part keeps no list of parts, as on create.
+			const everyPart = rest.allParts ?? current.allParts;
+			if (partIds || (everyPart && beforeParts.length)) {
+				const links = everyPart ? [] : (partIds ?? []);
 				await tx.delete(defectTypePart).where(eq(defectTypePart.defectTypeId, id));
-				if (partIds.length)
-					await tx.insert(defectTypePart).values(partIds.map((partId) => ({ defectTypeId: id, partId })));
+				if (links.length) await tx.insert(defectTypePart).values(links.map((partId) => ({ defectTypeId: id, partId })));
 			}
 			const before = {
 				...current,
@@ -125,11 +127,16 @@ export async function updateDefectType(access: Access, id: string, patch: z.infe
 				...before,
 				...rest,
 				...(retired === undefined ? {} : { retired }),
-				...(partIds ? { partIds: [...partIds].sort() } : {})
+				...(partIds || everyPart ? { partIds: everyPart ? [] : [...(partIds ?? [])].sort() } : {})
 			};
 			const diff = changedFields(before, after);
 			if (diff.any) {
-				const action = retired === true && !current.retiredAt ? 'defect_type.retire' : 'defect_type.update';
+				const action =
+					retired === true && !current.retiredAt
+						? 'defect_type.retire'
+						: retired === false && current.retiredAt
+							? 'defect_type.restore'
+							: 'defect_type.update';
 				await audit(tx, access, { action, subject: 'defect_type', subjectId: id, before: diff.from, after: diff.to });
 			}
 		});

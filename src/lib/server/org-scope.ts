@@ -7,7 +7,14 @@ import { DomainError } from './errors';
 async function requireAll(found: { id: string }[], ids: string[], what: string) {
 	const known = new Set(found.map((r) => r.id));
 	const missing = [...new Set(ids)].filter((id) => !known.has(id));
-	if (missing.length) throw new DomainError(404, 'not_found', `${missing.length} of the ${what} were not found.`);
+	if (missing.length) {
+		const n = missing.length;
+		throw new DomainError(
+			404,
+			'not_found',
+			n === 1 ? `One of the ${what} was not found.` : `${n} of the ${what} were not found.`
+		);
+	}
 }
 
 export async function requireParts(orgId: string, ids: string[]) {
