@@ -21,7 +21,7 @@ import { createOrganisation } from '../../src/lib/server/orgs';
 import { createPart } from '../../src/lib/server/parts';
 import { createTool, listTools, updateTool } from '../../src/lib/server/tools';
 import { moveInOrder } from '../../src/routes/(app)/setup/defects/order';
-import { readable } from '../../src/routes/(app)/setup/defects/readable';
+import { readable } from '../../src/lib/history-words';
 import { accessFor, expectDomainError, newUser } from './helpers';
 
 async function plant(label: string) {

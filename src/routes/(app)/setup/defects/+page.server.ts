@@ -21,7 +21,7 @@ import { DomainError, notFound } from '$lib/server/errors';
 import { act } from '$lib/server/http';
 import { activeParts } from '$lib/server/parts';
 import { moveInOrder } from './order';
-import { readable } from './readable';
+import { readable } from '$lib/history-words';
 import type { Actions, PageServerLoad } from './$types';
 
 const isColour = (c: string): c is MarkerColour => c in MARKER_COLOURS;

@@ -5,7 +5,7 @@ import { historyOf } from '$lib/server/audit';
 import { act } from '$lib/server/http';
 import { activeParts } from '$lib/server/parts';
 import { createTool, listTools, updateTool } from '$lib/server/tools';
-import { readable } from '../defects/readable';
+import { readable } from '$lib/history-words';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load = (async (event) => {
