@@ -1,4 +1,5 @@
 import { expect, test, type Page } from '@playwright/test';
+import { PDFDocument, rgb } from 'pdf-lib';
 import sharp from 'sharp';
 import { shoot, signIn } from './helpers';
 
@@ -121,4 +122,39 @@ test('readers see Setup but cannot change it', async ({ page }) => {
 	await expect(page.getByRole('button', { name: 'Save the plan' })).toHaveCount(0);
 	await expect(page.getByText('5 units per sample')).toBeVisible();
 	await shoot(page, 'viewer-part');
+});
+
+test('a PDF drawing is drawn in the browser, page by choice, and stored as an image', async ({ page }) => {
+	// Two landscape A4 pages (842 × 595 pt); the second has a thick frame, made for this test.
+	const pdf = await PDFDocument.create();
+	pdf.addPage([842, 595]);
+	const second = pdf.addPage([842, 595]);
+	second.drawRectangle({ x: 60, y: 60, width: 722, height: 475, borderWidth: 12, borderColor: rgb(0.1, 0.1, 0.1) });
+	const bytes = Buffer.from(await pdf.save());
+
+	await signIn(page, 'engineer@example.com');
+	await page.goto('/setup/parts');
+	await page.getByRole('link', { name: 'FW-118' }).click();
+	await page.getByLabel('Add a view').fill(`From PDF ${Date.now().toString(36)}`);
+	await page.getByRole('button', { name: 'Add view' }).click();
+	await expect(page.getByText('View added.')).toBeVisible();
+	const upload = page.getByRole('form', { name: /Upload a drawing for From PDF/ });
+	await upload
+		.getByLabel(/New drawing for/)
+		.setInputFiles({ name: 'drawing.pdf', mimeType: 'application/pdf', buffer: bytes });
+	await upload.getByLabel('Page of the PDF (1 to 2)').fill('2');
+	await upload.getByRole('button', { name: 'Upload' }).click();
+	const article = page.getByRole('article', { name: /View From PDF/ });
+	await expect(article.getByText('Revision A')).toBeVisible();
+
+	const views = (
+		await (await page.request.get(page.url().replace('/setup/parts/', '/api/v1/parts/') + '/views')).json()
+	).views as {
+		name: string;
+		revisions: { originalType: string; originalWidth: number; originalHeight: number; width: number; height: number }[];
+	}[];
+	const rev = views.find((v) => v.name.startsWith('From PDF'))!.revisions[0]!;
+	// Rendered at 3000 px on the long side, then shown at 2400: the page's 842 : 595 shape survives.
+	expect(rev).toMatchObject({ originalType: 'image/png', originalWidth: 3000, width: 2400 });
+	expect(rev.originalHeight).toBeCloseTo((3000 * 595) / 842, -1);
 });
