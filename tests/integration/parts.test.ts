@@ -79,7 +79,8 @@ describe('parts', () => {
 				frequency: 'lot',
 				everyHours: null,
 				defectTypeIds: [],
-				photoForSevere: false
+				photoForSevere: false,
+				sharedSamples: false
 			}),
 			404
 		);
@@ -99,7 +100,8 @@ describe('sampling plans', () => {
 			frequency: 'hours',
 			everyHours: 4,
 			defectTypeIds: [],
-			photoForSevere: true
+			photoForSevere: true,
+			sharedSamples: false
 		});
 		expect(await getPlan(access.org.id, part.id)).toMatchObject({
 			basis: 'area',
@@ -115,7 +117,8 @@ describe('sampling plans', () => {
 			frequency: 'lot',
 			everyHours: 4,
 			defectTypeIds: [],
-			photoForSevere: false
+			photoForSevere: false,
+			sharedSamples: false
 		});
 		expect(await getPlan(access.org.id, part.id)).toMatchObject({
 			basis: 'units',

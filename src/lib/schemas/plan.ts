@@ -13,7 +13,8 @@ export const samplingPlanSchema = z
 		frequency: z.enum(FREQUENCIES, { error: 'How often: per shift, per lot or every N hours.' }),
 		everyHours: z.coerce.number().int().min(1).max(168).nullable().default(null),
 		defectTypeIds: z.array(z.uuid('Not a valid id.')).max(500).default([]),
-		photoForSevere: z.boolean().default(false)
+		photoForSevere: z.boolean().default(false),
+		sharedSamples: z.boolean().default(false)
 	})
 	.superRefine((v, ctx) => {
 		if (v.basis === 'units' && !Number.isInteger(v.sampleSize)) {
@@ -34,6 +35,7 @@ export const samplingPlanFormSchema = z.preprocess((raw) => {
 		...v,
 		everyHours: v.everyHours === '' || v.everyHours === undefined ? null : v.everyHours,
 		defectTypeIds: list === undefined || list === '' ? [] : Array.isArray(list) ? list : [list],
-		photoForSevere: v.photoForSevere === 'on' || v.photoForSevere === 'true'
+		photoForSevere: v.photoForSevere === 'on' || v.photoForSevere === 'true',
+		sharedSamples: v.sharedSamples === 'on' || v.sharedSamples === 'true'
 	};
 }, samplingPlanSchema);

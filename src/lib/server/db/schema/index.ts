@@ -2,3 +2,4 @@ export * from '../auth.schema';
 export * from './system';
 export * from './catalogue';
 export * from './quality';
+export * from './inspection';

@@ -76,6 +76,8 @@ export const samplingPlan = pgTable('sampling_plan', {
 	/** Empty: every active type that applies to the part. */
 	defectTypeIds: jsonb().$type<string[]>().notNull().default([]),
 	photoForSevere: boolean().notNull().default(false),
+	/** Whether inspectors may pin into each other's open samples of this part (a shared bench). */
+	sharedSamples: boolean().notNull().default(false),
 	updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 });
 
