@@ -84,6 +84,41 @@ describe('regions', () => {
 			[0, 1]
 		];
 		expect(isSimplePolygon(bowTie)).toBe(false);
+		// A figure eight through one shared corner, and a spike folding back on its own edge.
+		const eight: Point[] = [
+			[0, 0],
+			[0.5, 0.5],
+			[1, 0],
+			[1, 1],
+			[0.5, 0.5],
+			[0, 1]
+		];
+		const spike: Point[] = [
+			[0, 0],
+			[1, 0],
+			[0.5, 0],
+			[0.5, 1]
+		];
+		expect(isSimplePolygon(eight)).toBe(false);
+		expect(isSimplePolygon(spike)).toBe(false);
+		// Three corners where the third folds straight back along the first edge.
+		expect(
+			isSimplePolygon([
+				[0, 0],
+				[1, 0],
+				[0.5, 0]
+			])
+		).toBe(false);
+		// An edge touching another's middle (a T) is not simple either.
+		expect(
+			isSimplePolygon([
+				[0, 0],
+				[1, 0],
+				[1, 1],
+				[0.5, 0],
+				[0, 1]
+			])
+		).toBe(false);
 		expect(
 			isSimplePolygon([
 				[0, 0],

@@ -39,3 +39,14 @@ export const formBool = z.preprocess((v) => v === 'on' || v === 'true' || v === 
 /** A field a form may send several times (checkboxes of one name): always a list. */
 export const formList = <T extends z.ZodType>(item: T, max = 500) =>
 	z.preprocess((v) => (v === undefined || v === '' ? [] : Array.isArray(v) ? v : [v]), z.array(item).max(max));
+
+/**
+ * The PATCH form of a create schema: every field optional and none defaulted. zod's own
+ * `.partial()` keeps defaults, so `{ archived: true }` would also reset every defaulted field.
+ */
+export function patchOf<T extends z.ZodRawShape>(schema: z.ZodObject<T>) {
+	const shape = Object.fromEntries(
+		Object.entries(schema.shape).map(([k, v]) => [k, v instanceof z.ZodDefault ? v.unwrap() : v])
+	) as { [K in keyof T]: T[K] extends z.ZodDefault<infer U> ? U : T[K] };
+	return z.object(shape).partial();
+}

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { COLOUR_KEYS, SEVERITIES, SHAPE_KEYS } from '$lib/markers';
-import { formBool, formList, text } from './common';
+import { formBool, formList, patchOf, text } from './common';
 
 const uuid = z.uuid('Not a valid id.');
 
@@ -15,7 +15,7 @@ export const defectTypeSchema = z.object({
 	partIds: z.array(uuid).max(500).default([])
 });
 
-export const defectTypePatchSchema = defectTypeSchema.partial().extend({
+export const defectTypePatchSchema = patchOf(defectTypeSchema).extend({
 	retired: z.boolean({ error: 'Retired is true or false.' }).optional()
 });
 
@@ -30,6 +30,12 @@ const weight = z
 export const weightsSchema = z.object({ a: weight, b: weight, c: weight, d: weight });
 
 export type DefectTypeInput = z.infer<typeof defectTypeSchema>;
+
+/** What POST /api/v1/defect-types takes: a type for no part at all would never reach a Bench. */
+export const defectTypeCreateSchema = defectTypeSchema.refine((v) => v.allParts || v.partIds.length > 0, {
+	path: ['partIds'],
+	message: 'Give the parts this type applies to, or set allParts.'
+});
 
 // Page forms send text: a checkbox is "on" or absent, a group of checkboxes is one name sent several times.
 // Codes are capitals; a tablet keyboard often starts in lower case, so the form takes either.

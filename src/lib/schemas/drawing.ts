@@ -26,7 +26,9 @@ const outline = z
 	.max(200, 'At most 200 corners.');
 
 export const regionSchema = z.object({ name: text(60, 'Region name'), points: outline });
-export const regionPatchSchema = regionSchema.partial();
+export const regionPatchSchema = regionSchema
+	.partial()
+	.refine((p) => p.name !== undefined || p.points !== undefined, { message: 'Send a new name or new points.' });
 
 export const revisionNoteSchema = z.object({
 	note: z.string().trim().max(300, 'The note is at most 300 characters.').default('')

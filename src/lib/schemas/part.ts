@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { text } from './common';
+import { patchOf, text } from './common';
 
 const optionalText = (max: number, label: string) =>
 	z
@@ -16,7 +16,7 @@ export const partSchema = z.object({
 	notes: optionalText(2000, 'Notes')
 });
 
-export const partPatchSchema = partSchema.partial().extend({
+export const partPatchSchema = patchOf(partSchema).extend({
 	archived: z.boolean({ error: 'Archived is true or false.' }).optional()
 });
 

@@ -13,7 +13,13 @@ export const startSampleSchema = z.object({
 	id: id.optional(),
 	partId: id,
 	toolId: id.nullable().default(null),
-	cavity: z.number({ error: 'Cavity is a number.' }).int('Cavity is a whole number.').min(1).max(128).nullable().default(null),
+	cavity: z
+		.number({ error: 'Cavity is a number.' })
+		.int('Cavity is a whole number.')
+		.min(1)
+		.max(128)
+		.nullable()
+		.default(null),
 	shift: z.string({ error: 'Shift is text.' }).trim().max(20, 'Shift is at most 20 characters.').default(''),
 	lot: z.string({ error: 'Lot is text.' }).trim().max(60, 'Lot is at most 60 characters.').default(''),
 	/** n; when missing, the sampling plan's. */

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { formList, text } from './common';
+import { formList, patchOf, text } from './common';
 
 export const TOOL_KINDS = ['die', 'mould', 'fixture'] as const;
 
@@ -15,7 +15,7 @@ export const toolSchema = z.object({
 	partIds: z.array(z.uuid('Not a valid id.')).max(500).default([])
 });
 
-export const toolPatchSchema = toolSchema.partial();
+export const toolPatchSchema = patchOf(toolSchema);
 export type ToolInput = z.infer<typeof toolSchema>;
 
 /** The page form: the parts a tool makes come as one checkbox name sent several times. */

@@ -66,7 +66,8 @@ async function findType(orgId: string, id: string) {
 
 export async function createDefectType(access: Access, input: DefectTypeInput) {
 	await requireParts(access.org.id, input.partIds);
-	const { partIds, ...values } = input;
+	const { partIds: sent, ...values } = input;
+	const partIds = [...new Set(sent)];
 	try {
 		return await db().transaction(async (tx) => {
 			const [{ last } = { last: null }] = await tx
@@ -98,7 +99,8 @@ export async function createDefectType(access: Access, input: DefectTypeInput) {
 export async function updateDefectType(access: Access, id: string, patch: z.infer<typeof defectTypePatchSchema>) {
 	const current = await findType(access.org.id, id);
 	if (patch.partIds) await requireParts(access.org.id, patch.partIds);
-	const { partIds, retired, ...rest } = patch;
+	const { partIds: sent, retired, ...rest } = patch;
+	const partIds = sent && [...new Set(sent)];
 	try {
 		await db().transaction(async (tx) => {
 			const values = {

@@ -17,21 +17,42 @@ export interface RevisionOwner {
 	userId: string | null;
 }
 
-/** Stores the three renditions, then the row. A failed insert removes the objects again. */
+type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+type RevisionRow = typeof viewRevision.$inferSelect;
+
+/** Removes objects after a failure, without hiding the failure itself. */
+async function discard(keys: string[]) {
+	try {
+		await deleteObjects(keys);
+	} catch (e) {
+		console.error('[stipple] could not remove objects of a failed upload', keys, e);
+	}
+}
+
+/**
+ * Stores the three renditions, then the row, then whatever `afterInsert` adds, all under the
+ * view's lock in one transaction. A failure anywhere removes the objects again.
+ */
 export async function storeRevision(
 	owner: RevisionOwner,
 	image: ProcessedImage,
 	note = '',
-	executor: Pick<Db, 'transaction'> = db()
+	executor: Pick<Db, 'transaction'> = db(),
+	afterInsert?: (tx: Tx, row: RevisionRow) => Promise<void>
 ) {
 	const id = randomUUID();
 	const prefix = `orgs/${owner.organizationId}/views/${owner.viewId}/${id}`;
 	const keys = { original: `${prefix}/original`, display: `${prefix}/display.webp`, thumb: `${prefix}/thumb.webp` };
-	await Promise.all([
+	const puts = await Promise.allSettled([
 		putObject(keys.original, image.original.bytes, image.original.type),
 		putObject(keys.display, image.display.bytes, 'image/webp'),
 		putObject(keys.thumb, image.thumb.bytes, 'image/webp')
 	]);
+	const failed = puts.find((p) => p.status === 'rejected');
+	if (failed) {
+		await discard(Object.values(keys));
+		throw failed.reason;
+	}
 	try {
 		// Inside a caller's transaction (the seed) this is a savepoint.
 		return await executor.transaction(async (tx) => {
@@ -64,10 +85,11 @@ export async function storeRevision(
 					createdBy: owner.userId
 				})
 				.returning();
+			await afterInsert?.(tx, row!);
 			return row!;
 		});
 	} catch (e) {
-		await deleteObjects(Object.values(keys));
+		await discard(Object.values(keys));
 		throw e;
 	}
 }
@@ -180,8 +202,9 @@ async function findView(orgId: string, viewId: string) {
 export async function addRevision(access: Access, viewId: string, bytes: Buffer, note = '') {
 	const view = await findView(access.org.id, viewId);
 	const image = await processImage(bytes);
-	const row = await storeRevision({ organizationId: access.org.id, viewId, userId: access.user.id }, image, note);
-	await db().transaction(async (tx) => {
+	const owner = { organizationId: access.org.id, viewId, userId: access.user.id };
+	const row = await storeRevision(owner, image, note, db(), async (tx, row) => {
+		// Still under the view's lock: the previous revision is the one just before this.
 		const [previous] = await tx
 			.select({ id: viewRevision.id, gridColumns: viewRevision.gridColumns, gridRows: viewRevision.gridRows })
 			.from(viewRevision)

@@ -88,6 +88,7 @@ export async function updatePart(access: Access, partId: string, patch: z.infer<
 				...(archived === undefined ? {} : { archivedAt: archived ? (current.archivedAt ?? new Date()) : null })
 			};
 			const before = { ...snapshot(current) };
+			if (Object.keys(values).length === 0) return current;
 			const [row] = await tx.update(part).set(values).where(eq(part.id, partId)).returning(fields);
 			const diff = changedFields(before, snapshot(row!));
 			if (diff.any) {

@@ -24,7 +24,8 @@ export function cavities(count: number): number[] {
 
 export async function createTool(access: Access, input: ToolInput) {
 	await requireParts(access.org.id, input.partIds);
-	const { partIds, ...values } = input;
+	const { partIds: sent, ...values } = input;
+	const partIds = [...new Set(sent)];
 	try {
 		return await db().transaction(async (tx) => {
 			const [row] = await tx
@@ -50,7 +51,8 @@ export async function createTool(access: Access, input: ToolInput) {
 export async function updateTool(access: Access, toolId: string, patch: z.infer<typeof toolPatchSchema>) {
 	const current = await getTool(access.org.id, toolId);
 	if (patch.partIds) await requireParts(access.org.id, patch.partIds);
-	const { partIds, ...values } = patch;
+	const { partIds: sent, ...values } = patch;
+	const partIds = sent && [...new Set(sent)];
 	try {
 		await db().transaction(async (tx) => {
 			if (Object.keys(values).length) {

@@ -66,25 +66,55 @@ export function polygonArea(points: readonly Point[]): number {
 	return Math.abs(twice) / 2;
 }
 
-function segmentsCross(a: Point, b: Point, c: Point, d: Point): boolean {
-	const orient = (p: Point, q: Point, r: Point) =>
-		Math.sign((q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0]));
+const orient = (p: Point, q: Point, r: Point) =>
+	Math.sign((q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0]));
+
+const onSegment = (p: Point, q: Point, r: Point) =>
+	Math.min(p[0], r[0]) <= q[0] &&
+	q[0] <= Math.max(p[0], r[0]) &&
+	Math.min(p[1], r[1]) <= q[1] &&
+	q[1] <= Math.max(p[1], r[1]);
+
+/** Do segments ab and cd meet at all, touching and overlapping included (the textbook orientation test)? */
+function segmentsMeet(a: Point, b: Point, c: Point, d: Point): boolean {
 	const o1 = orient(a, b, c);
 	const o2 = orient(a, b, d);
 	const o3 = orient(c, d, a);
 	const o4 = orient(c, d, b);
-	return o1 * o2 < 0 && o3 * o4 < 0;
+	if (o1 !== o2 && o3 !== o4) return true;
+	return (
+		(o1 === 0 && onSegment(a, c, b)) ||
+		(o2 === 0 && onSegment(a, d, b)) ||
+		(o3 === 0 && onSegment(c, a, d)) ||
+		(o4 === 0 && onSegment(c, b, d))
+	);
 }
 
-/** A region outline must be a simple polygon: three or more corners, no edge crossing another. */
+/**
+ * A region outline must be a simple polygon: three or more distinct corners, and no edge meeting
+ * another except its two neighbours at their shared corners (no crossing, touching or folding back).
+ */
 export function isSimplePolygon(points: readonly Point[]): boolean {
 	const n = points.length;
 	if (n < 3) return false;
+	const corners = new Set(points.map(([x, y]) => `${x},${y}`));
+	if (corners.size !== n) return false;
+	const edge = (i: number): [Point, Point] => [points[i]!, points[(i + 1) % n]!];
 	for (let i = 0; i < n; i++) {
 		for (let j = i + 1; j < n; j++) {
-			// Neighbouring edges share a corner; that is not a crossing.
-			if (j === i + 1 || (i === 0 && j === n - 1)) continue;
-			if (segmentsCross(points[i]!, points[(i + 1) % n]!, points[j]!, points[(j + 1) % n]!)) return false;
+			const neighbours = j === i + 1 || (i === 0 && j === n - 1);
+			const [a, b] = edge(i);
+			const [c, d] = edge(j);
+			if (neighbours) {
+				// Neighbours share one corner; they may not fold back along each other.
+				const shared = j === i + 1 ? b : a;
+				const p = j === i + 1 ? a : b;
+				const q = j === i + 1 ? d : c;
+				const sameWay = (p[0] - shared[0]) * (q[0] - shared[0]) + (p[1] - shared[1]) * (q[1] - shared[1]) > 0;
+				if (orient(p, shared, q) === 0 && sameWay) return false;
+				continue;
+			}
+			if (segmentsMeet(a, b, c, d)) return false;
 		}
 	}
 	return polygonArea(points) > 0;

@@ -36,7 +36,9 @@ export const sample = pgTable(
 		unitName: text().notNull().default('unit'),
 		/** How many pieces the unit strip shows. Equals size when counting whole units. */
 		unitCount: integer().notNull(),
-		state: text({ enum: ['open', 'closed'] }).notNull().default('open'),
+		state: text({ enum: ['open', 'closed'] })
+			.notNull()
+			.default('open'),
 		closedAt: timestamp({ withTimezone: true }),
 		closedBy: text().references(() => user.id, { onDelete: 'set null' }),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()

@@ -1,5 +1,5 @@
 import { json } from '@sveltejs/kit';
-import { defectTypeSchema } from '$lib/schemas/defect';
+import { defectTypeCreateSchema } from '$lib/schemas/defect';
 import { requireRole } from '$lib/server/access';
 import { createDefectType, listDefectTypes } from '$lib/server/defects';
 import { answer, readJson } from '$lib/server/http';
@@ -14,6 +14,6 @@ export const GET: RequestHandler = (event) =>
 export const POST: RequestHandler = (event) =>
 	answer(async () => {
 		const access = requireRole(event, 'engineer');
-		const input = await readJson(event.request, defectTypeSchema);
+		const input = await readJson(event.request, defectTypeCreateSchema);
 		return json({ defectType: await createDefectType(access, input) }, { status: 201 });
 	});
