@@ -1,5 +1,5 @@
 /** The sampling plan of a part: how big a sample is, how often, which types, when a photo is due. */
-import { eq } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import type { SamplingPlanInput } from '$lib/schemas/plan';
 import type { Access } from './access';
 import { audit, changedFields } from './audit';
@@ -41,4 +41,18 @@ export async function setPlan(access: Access, partId: string, input: SamplingPla
 		}
 	});
 	return getPlan(access.org.id, partId);
+}
+
+/** Plans of several parts at once (the Bench's start form). */
+export async function plansOf(orgId: string, partIds: string[]) {
+	if (partIds.length === 0) return [];
+	return db()
+		.select({
+			partId: samplingPlan.partId,
+			size: samplingPlan.sampleSize,
+			basis: samplingPlan.basis,
+			unitName: samplingPlan.unitName
+		})
+		.from(samplingPlan)
+		.where(and(eq(samplingPlan.organizationId, orgId), inArray(samplingPlan.partId, partIds)));
 }
