@@ -65,6 +65,8 @@ test('an inspector pins 7 defects of 3 types on two views, marks a clean unit an
 	await expect(page.getByText('7 defects on 5 units')).toBeVisible();
 	await page.getByRole('button', { name: 'Finish the sample' }).click();
 	await expect(page).toHaveURL(/\/bench\?closed=/);
+	await expect(page.getByRole('status', { name: 'Last sample' })).toContainText('7 defects on 5 units');
+	await shoot(page, 'bench-recap');
 
 	const stored = (await (await page.request.get(`/api/v1/samples/${sampleId}`)).json()).sample;
 	expect(stored.state).toBe('closed');
