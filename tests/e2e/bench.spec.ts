@@ -130,3 +130,36 @@ test('pins made without network survive a reload and arrive exactly once', async
 	expect(stored.pins).toHaveLength(5);
 	expect(new Set(stored.pins.map((p: { id: string }) => p.id)).size).toBe(5);
 });
+
+test('on a tablet, taps place pins where the finger is, and tapping a pin opens it', async ({ browser }) => {
+	const tablet = await browser.newContext({ viewport: { width: 768, height: 1024 }, hasTouch: true, isMobile: true });
+	const page = await tablet.newPage();
+	const sampleId = await startSample(page, 'admin@example.com');
+	const sample = (await (await page.request.get(`/api/v1/samples/${sampleId}`)).json()).sample;
+	const views = (await (await page.request.get(`/api/v1/parts/${sample.partId}/views`)).json()).views;
+	const rev = views.find((v: { name: string }) => v.name === 'Front').revisions[0];
+	await page.getByRole('radio', { name: /Flash/ }).click();
+	const r = await drawingRect(page, rev);
+	for (const [x, y] of [
+		[0.3, 0.4],
+		[0.6, 0.5]
+	]) {
+		await page.touchscreen.tap(r.x + x! * r.w, r.y + y! * r.h);
+	}
+	await expect(page.getByTestId('sync-state')).toHaveText(/All saved/);
+	// Placing never opens the pin panel (it would cover the drawing for the next tap).
+	await expect(page.getByRole('complementary', { name: 'Selected pin' })).toHaveCount(0);
+	const stored = (await (await page.request.get(`/api/v1/samples/${sampleId}`)).json()).sample.pins as {
+		x: number;
+		y: number;
+	}[];
+	expect(stored.map((p) => [Math.round(p.x * 100) / 100, Math.round(p.y * 100) / 100])).toEqual([
+		[0.3, 0.4],
+		[0.6, 0.5]
+	]);
+	await page.waitForTimeout(600);
+	await page.touchscreen.tap(r.x + 0.3 * r.w, r.y + 0.4 * r.h);
+	await expect(page.getByRole('complementary', { name: 'Selected pin' })).toBeVisible();
+	await shoot(page, 'bench-tablet');
+	await tablet.close();
+});
