@@ -1,18 +1,16 @@
 /**
  * `npm run bench`: starts the built app (build/index.js) on a free loopback port with its own
- * throwaway PostgreSQL, as the end-to-end setup does (tests/e2e/global-setup.ts), seeded with
+ * throwaway PostgreSQL (tests/fixtures/app-server.ts, shared with the end-to-end setup), seeded with
  * the demo; runs every tests/bench/*.bench.ts in turn and prints each one's table; stops
  * everything again, also on an error or Ctrl+C. Figures only: it never fails on speed.
  */
-import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { freePort, startLocalCluster } from '../../src/lib/server/db/local-cluster';
+import { startAppServer } from '../fixtures/app-server';
 import { formatTable, isBench, type BenchContext } from './helpers';
 
-const root = path.resolve(import.meta.dirname, '../..');
 const benchDir = import.meta.dirname;
 
 /** Undone in reverse order by stopAll(), whatever happened before. */
@@ -63,61 +61,15 @@ function postmasterPid(dataDir: string): number | null {
 }
 
 async function startServices(): Promise<BenchContext> {
-	if (!fs.existsSync(path.join(root, 'build/index.js')))
-		throw new Error('build/index.js is missing: run `npm run build` (npm run bench does it for you).');
-	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'stipple-bench-'));
-	fs.chmodSync(dir, 0o755);
-	cleanups.push({ what: 'the temporary folder', undo: () => fs.rmSync(dir, { recursive: true, force: true }) });
-
-	const cluster = await startLocalCluster({ dataDir: path.join(dir, 'pg'), ephemeral: true, log: () => {} });
-	cleanups.push({ what: 'PostgreSQL', undo: () => cluster.stop() });
-
-	const port = await freePort();
-	const url = `http://127.0.0.1:${port}`;
-	const appLog = path.join(dir, 'app.log');
-	const out = fs.openSync(appLog, 'a');
-	const app = spawn(process.execPath, ['build/index.js'], {
-		cwd: root,
-		stdio: ['ignore', out, out],
-		env: {
-			...process.env,
-			NODE_ENV: 'production',
-			NODE_NO_WARNINGS: '1',
-			BODY_SIZE_LIMIT: '64M',
-			HOST: '127.0.0.1',
-			PORT: String(port),
-			ORIGIN: url,
-			DATABASE_URL: cluster.url,
-			SMTP_URL: '',
-			S3_ENDPOINT: '',
-			STIPPLE_DATA_DIR: dir,
-			BETTER_AUTH_SECRET: 'benchmark-runs-only-secret-0123456789abcdef'
-		}
-	});
-	fs.closeSync(out);
-	cleanups.push({
-		what: 'the app',
-		undo: () =>
-			new Promise<void>((resolve) => {
-				if (app.exitCode !== null || app.signalCode !== null) return resolve();
-				app.once('exit', () => resolve());
-				app.kill('SIGTERM');
-				setTimeout(() => app.kill('SIGKILL'), 10_000).unref();
-			})
-	});
-
-	const deadline = Date.now() + 60_000;
-	for (;;) {
-		if (app.exitCode !== null) throw new Error(`The app exited early:\n${tail(appLog)}`);
-		try {
-			if ((await fetch(`${url}/api/v1/health`, { signal: AbortSignal.timeout(5_000) })).ok) break;
-		} catch {
-			// not listening yet
-		}
-		if (Date.now() > deadline) throw new Error(`The app did not answer within 60 s:\n${tail(appLog)}`);
-		await new Promise((r) => setTimeout(r, 200));
-	}
-	return { url, databaseUrl: cluster.url, appPid: app.pid!, postgresPid: postmasterPid(cluster.dataDir), appLog };
+	const server = await startAppServer('bench');
+	cleanups.push({ what: 'the app, PostgreSQL and the temporary folder', undo: () => server.stop() });
+	return {
+		url: server.url,
+		databaseUrl: server.databaseUrl,
+		appPid: server.appPid,
+		postgresPid: postmasterPid(server.clusterDataDir),
+		appLog: server.appLog
+	};
 }
 
 function benchFiles(): string[] {
