@@ -6,31 +6,13 @@ import { spawn, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { buildIsStale } from './freshness.js';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 process.chdir(root);
 
-/** @param {string} p */
-function mtime(p) {
-	try {
-		return fs.statSync(p).mtimeMs;
-	} catch {
-		return 0;
-	}
-}
-
-/** @param {string} p @returns {number} */
-function newest(p) {
-	if (!fs.existsSync(p)) return 0;
-	const st = fs.statSync(p);
-	if (!st.isDirectory()) return st.mtimeMs;
-	let max = st.mtimeMs;
-	for (const entry of fs.readdirSync(p)) max = Math.max(max, newest(path.join(p, entry)));
-	return max;
-}
-
-if (mtime('build/index.js') < newest('src')) {
-	console.log('[bench] Building (the sources are newer than build/index.js)…');
+if (buildIsStale()) {
+	console.log('[bench] Building (the sources are newer than the build)…');
 	const res = spawnSync('npm', ['run', 'build', '--silent'], { stdio: 'inherit' });
 	if (res.status !== 0) {
 		console.error("[bench] 'npm run build' failed.");

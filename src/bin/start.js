@@ -3,32 +3,13 @@
 // app. The app itself starts its embedded PostgreSQL and mail catcher when none is configured.
 // Plain JavaScript with no dependencies, because it runs before `npm ci`.
 import { spawn, spawnSync } from 'node:child_process';
-import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { buildIsStale, mtime } from './freshness.js';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 process.chdir(root);
 const say = (/** @type {string} */ line) => console.log(`[stipple] ${line}`);
-
-/** @param {string} p */
-function mtime(p) {
-	try {
-		return fs.statSync(p).mtimeMs;
-	} catch {
-		return 0;
-	}
-}
-
-/** @param {string} p @returns {number} */
-function newest(p) {
-	if (!fs.existsSync(p)) return 0;
-	const st = fs.statSync(p);
-	if (!st.isDirectory()) return st.mtimeMs;
-	let max = st.mtimeMs;
-	for (const entry of fs.readdirSync(p)) max = Math.max(max, newest(path.join(p, entry)));
-	return max;
-}
 
 /** @param {string} cmd @param {string[]} args */
 function run(cmd, args) {
@@ -44,8 +25,7 @@ if (mtime('node_modules/.package-lock.json') < mtime('package-lock.json')) {
 	run('npm', ['ci', '--no-audit', '--no-fund']);
 }
 
-const inputs = ['src', 'static', 'package-lock.json', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts'];
-if (mtime('build/handler.js') < Math.max(...inputs.map(newest))) {
+if (buildIsStale()) {
 	say('Building…');
 	run('npm', ['run', 'build', '--silent']);
 }
