@@ -1,4 +1,5 @@
 import { expect, test, type Page } from '@playwright/test';
+import sharp from 'sharp';
 import { shoot, signIn } from './helpers';
 
 async function canvasBox(page: Page) {
@@ -14,6 +15,12 @@ async function drawingRect(page: Page, view: { width: number; height: number }) 
 	const fit = Math.min(box.width / view.width, box.height / view.height);
 	return { x: box.x, y: box.y, w: view.width * fit, h: view.height * fit };
 }
+
+/** A photo as a tablet's camera would make it: 3000 × 2000 JPEG. */
+const cameraPhoto = () =>
+	sharp({ create: { width: 3000, height: 2000, channels: 3, background: { r: 120, g: 110, b: 100 } } })
+		.jpeg()
+		.toBuffer();
 
 async function startSample(page: Page, email: string) {
 	await signIn(page, email);
@@ -59,6 +66,27 @@ test('an inspector pins 7 defects of 3 types on two views, marks a clean unit an
 	await expect(page.getByTestId('sync-state')).toHaveText(/All saved/);
 	await shoot(page, 'bench-pinned');
 
+	// The demo plan wants a photo of every severity A or B defect: Short shot is B.
+	await page.getByRole('button', { name: 'Finish sample…' }).click();
+	await expect(page.getByText(/Still without one: SS on unit 2, SS on unit 4/)).toBeVisible();
+	await expect(page.getByRole('button', { name: 'Finish the sample' })).toBeDisabled();
+	await page.getByRole('button', { name: 'Keep inspecting' }).click();
+	const photo = { name: 'short-shot.jpg', mimeType: 'image/jpeg', buffer: await cameraPhoto() };
+	for (const [unit, view, type, x, y] of plan.filter(([, , type]) => type === 'Short shot')) {
+		await page.getByRole('tab', { name: new RegExp(`^Unit ${unit},`) }).click();
+		await page.getByRole('tab', { name: view, exact: true }).click();
+		const r = await drawingRect(page, view === 'Front' ? front : section);
+		await page.mouse.click(r.x + x * r.w, r.y + y * r.h);
+		const panel = page.getByRole('complementary', { name: 'Selected pin' });
+		await expect(panel).toContainText(`Pin on unit ${unit}`);
+		await expect(panel.getByText(/asks for a photo/)).toBeVisible();
+		await panel.getByTestId('photo-file').setInputFiles(photo);
+		await expect(panel.getByRole('img', { name: `Defect on unit ${unit}` })).toBeVisible();
+		await panel.getByRole('button', { name: 'Close the pin panel' }).click();
+		expect(type).toBe('Short shot');
+	}
+	await expect(page.getByTestId('sync-state')).toHaveText(/All saved/);
+
 	await page.getByRole('button', { name: 'Finish sample…' }).click();
 	const counts = page.getByTestId('close-counts');
 	await expect(counts).toContainText('Sink mark');
@@ -70,6 +98,11 @@ test('an inspector pins 7 defects of 3 types on two views, marks a clean unit an
 
 	const stored = (await (await page.request.get(`/api/v1/samples/${sampleId}`)).json()).sample;
 	expect(stored.state).toBe('closed');
+	// Each Short shot pin has its photo, served as a thumbnail from the access-checked route.
+	const withPhotos = stored.pins.filter((p: { photos: string[] }) => p.photos.length === 1);
+	expect(withPhotos).toHaveLength(2);
+	const thumb = await page.request.get(`/api/v1/photos/${withPhotos[0].photos[0]}/thumb.webp`);
+	expect([thumb.status(), thumb.headers()['content-type']]).toEqual([200, 'image/webp']);
 	expect(stored.units.map((u: { status: string }) => u.status)).toEqual([
 		'pinned',
 		'pinned',

@@ -2,7 +2,10 @@ import { randomUUID } from 'node:crypto';
 import { and, count, eq } from 'drizzle-orm';
 import { describe, expect, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
-import { pin, sample } from '../../src/lib/server/db/schema';
+import { auditEntry, pin, pinPhoto, sample } from '../../src/lib/server/db/schema';
+import { addPhoto, photoImage, removePhoto } from '../../src/lib/server/photos';
+import { listKeys } from '../../src/lib/server/storage';
+import sharp from 'sharp';
 import { createDefectType, updateDefectType } from '../../src/lib/server/defects';
 import { addRegion, addRevision, createView, setGrid } from '../../src/lib/server/drawings';
 import { createOrganisation } from '../../src/lib/server/orgs';
@@ -20,7 +23,7 @@ import {
 } from '../../src/lib/server/samples';
 import { acceptInvitation, invite } from '../../src/lib/server/team';
 import { pinSchema, startSampleSchema } from '../../src/lib/schemas/sample';
-import { good } from '../fixtures/images';
+import { bad, good, pixelBomb } from '../fixtures/images';
 import { accessFor, expectDomainError, newUser } from './helpers';
 import type { Access } from '../../src/lib/server/access';
 import type { Role } from '../../src/lib/roles';
@@ -125,8 +128,9 @@ describe('samples and pins', () => {
 			[p.scratch.code, 2],
 			[p.dent.code, 1]
 		]);
-		const late = await expectDomainError(writePin(p.access, s.id, pinOn(p, 2)), 409, 'sample_closed');
-		expect(late.message).toMatch(/closed/);
+		// Even an engineer needs a reason (the inspector's own refusal is in the next test).
+		const late = await expectDomainError(writePin(p.access, s.id, pinOn(p, 2)), 422, 'reason_required');
+		expect(late.message).toMatch(/closed sample/);
 	});
 
 	it('lets only an engineer change a closed sample, with a reason, audited', async () => {
@@ -146,6 +150,16 @@ describe('samples and pins', () => {
 		expect(moved).toMatchObject({ x: 0.9, zone: 'B4' });
 		await deletePin(engineer, placed.id, 'Duplicate of pin on unit 2.');
 		expect((await getSample(p.access.org.id, s.id)).pins).toHaveLength(0);
+		await expectDomainError(writePin(inspector, s.id, pinOn(p, 2)), 409, 'sample_closed');
+		await expectDomainError(writePin(engineer, s.id, pinOn(p, 2)), 422, 'reason_required');
+		await writePin(engineer, s.id, { ...pinOn(p, 2), reason: 'Missed at the line; found at review.' });
+		const trail = await db()
+			.select({ action: auditEntry.action, reason: auditEntry.reason })
+			.from(auditEntry)
+			.where(eq(auditEntry.subjectId, s.id))
+			.orderBy(auditEntry.at);
+		expect(trail.map((t) => t.action)).toEqual(['pin.update', 'pin.delete', 'pin.add']);
+		expect(trail.every((t) => t.reason)).toBe(true);
 	});
 
 	it("keeps inspectors out of each other's open samples unless the plan shares them", async () => {
@@ -170,6 +184,59 @@ describe('samples and pins', () => {
 		await expectDomainError(deletePin(a.access, theirs.id), 404);
 		await expectDomainError(closeSample(a.access, s.id), 404);
 		await expectDomainError(startSample(a.access, startSampleSchema.parse({ partId: b.part.id })), 404);
+	});
+});
+
+describe('photos of defects', () => {
+	it('stores a retried photo once, upright and without metadata, and asks for one where the plan says so', async () => {
+		const p = await plant('photo');
+		const severe = await createDefectType(p.access, { ...type('CRK'), severity: 'A' });
+		await setPlan(p.access, p.part.id, { ...plan, photoForSevere: true });
+		const s = await startSample(p.access, startSampleSchema.parse({ partId: p.part.id }));
+		const { pin: crack } = await writePin(p.access, s.id, { ...pinOn(p, 1), defectTypeId: severe.id });
+		await writePin(p.access, s.id, pinOn(p, 2)); // severity C: no photo needed
+		await updateUnit(p.access, s.id, 3, { clean: true });
+		const refused = await expectDomainError(closeSample(p.access, s.id), 409, 'photo_required');
+		expect(refused.message).toContain('CRK on unit 1');
+
+		const photoId = randomUUID();
+		const bytes = await good.photo();
+		const first = await addPhoto(p.access, crack.id, photoId, bytes);
+		const again = await addPhoto(p.access, crack.id, photoId, bytes);
+		expect([first.created, again.created]).toEqual([true, false]);
+		// Stored 4000 × 3000 with orientation 6: upright it is 3000 × 4000, scaled to 1600 on the long side.
+		expect([first.photo.width, first.photo.height]).toEqual([1200, 1600]);
+		const [{ n } = { n: 0 }] = await db().select({ n: count() }).from(pinPhoto).where(eq(pinPhoto.pinId, crack.id));
+		expect(n).toBe(1);
+		const stored = await new Response((await photoImage(p.access.org.id, photoId, 'display')).body).arrayBuffer();
+		const meta = await sharp(Buffer.from(stored)).metadata();
+		expect([meta.format, meta.exif, meta.orientation]).toEqual(['webp', undefined, undefined]);
+		expect((await getSample(p.access.org.id, s.id)).pins.find((x) => x.id === crack.id)?.photos).toEqual([photoId]);
+
+		expect((await closeSample(p.access, s.id)).sample.state).toBe('closed');
+	});
+
+	it('refuses what is not a photo, writes nothing for it, and keeps photos of closed samples to engineers', async () => {
+		const p = await plant('badphoto');
+		const inspector = await member(p, 'inspector');
+		const s = await startSample(inspector, startSampleSchema.parse({ partId: p.part.id }));
+		const { pin: placed } = await writePin(inspector, s.id, pinOn(p, 1));
+		await expectDomainError(addPhoto(inspector, placed.id, randomUUID(), await good.svg()), 415);
+		await expectDomainError(addPhoto(inspector, placed.id, randomUUID(), await bad.truncatedPng()), 422);
+		await expectDomainError(addPhoto(inspector, placed.id, randomUUID(), pixelBomb()), 413);
+		await expectDomainError(addPhoto(inspector, randomUUID(), randomUUID(), await good.webp()), 404);
+		const [{ n } = { n: 0 }] = await db().select({ n: count() }).from(pinPhoto).where(eq(pinPhoto.pinId, placed.id));
+		expect(n).toBe(0);
+		expect(await listKeys(`orgs/${p.access.org.id}/photos/`)).toEqual([]);
+
+		for (const i of [2, 3]) await updateUnit(inspector, s.id, i, { clean: true });
+		await closeSample(inspector, s.id);
+		await expectDomainError(addPhoto(inspector, placed.id, randomUUID(), await good.webp()), 409, 'sample_closed');
+		await expectDomainError(addPhoto(p.access, placed.id, randomUUID(), await good.webp()), 422, 'reason_required');
+		const late = await addPhoto(p.access, placed.id, randomUUID(), await good.webp(), 'Photo taken at review.');
+		expect(late.created).toBe(true);
+		await removePhoto(p.access, late.photo.id, 'Wrong part in the picture.');
+		await expectDomainError(photoImage(p.access.org.id, late.photo.id, 'thumb'), 404);
 	});
 });
 

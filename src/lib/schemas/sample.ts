@@ -39,7 +39,9 @@ export const pinSchema = z.object({
 	defectTypeId: id,
 	x: coordinate('x'),
 	y: coordinate('y'),
-	note: note.default('')
+	note: note.default(''),
+	/** Only for an engineer adding a missed pin to a closed sample (audited). */
+	reason: z.string().trim().max(300, 'The reason is at most 300 characters.').optional()
 });
 
 export const pinPatchSchema = z.object({
@@ -51,7 +53,8 @@ export const pinPatchSchema = z.object({
 	reason: z.string().trim().max(300, 'The reason is at most 300 characters.').optional()
 });
 
-export const pinDeleteSchema = z.object({
+/** `?reason=…` on a DELETE or an upload: required once the sample is closed. */
+export const correctionQuerySchema = z.object({
 	reason: z.string().trim().max(300, 'The reason is at most 300 characters.').optional()
 });
 

@@ -64,6 +64,8 @@ function refuseActiveSvg(text: string) {
 	}
 }
 
+const photoTypes = () => new DomainError(415, 'unsupported_type', 'A photo is a JPEG, PNG or WebP image.');
+
 const unsupported = () =>
 	new DomainError(415, 'unsupported_type', 'Upload a PNG, JPEG, WebP, TIFF or SVG image, or a PDF page.');
 
@@ -80,12 +82,22 @@ function readError(e: unknown): never {
 	throw new DomainError(422, 'unreadable_image', 'The file is not a readable image, or it is damaged or cut short.');
 }
 
-export async function processImage(bytes: Buffer): Promise<ProcessedImage> {
+export interface ImageOptions {
+	/** Drawings may be SVG; photos may not. */
+	svg?: boolean;
+	displayLongSide?: number;
+}
+
+export async function processImage(
+	bytes: Buffer,
+	{ svg = true, displayLongSide = IMAGE_LIMITS.displayLongSide }: ImageOptions = {}
+): Promise<ProcessedImage> {
 	if (bytes.length === 0) throw new DomainError(422, 'empty_file', 'The file is empty.');
 	if (bytes.length > IMAGE_LIMITS.maxBytes) {
 		throw new DomainError(413, 'too_large', `The file is over ${Math.round(IMAGE_LIMITS.maxBytes / 1024 / 1024)} MB.`);
 	}
 	const isSvg = looksLikeSvg(bytes);
+	if (isSvg && !svg) throw photoTypes();
 	if (isSvg) refuseActiveSvg(bytes.toString('utf8'));
 
 	const input = { limitInputPixels: IMAGE_LIMITS.maxPixels, failOn: 'error' as const };
@@ -97,6 +109,7 @@ export async function processImage(bytes: Buffer): Promise<ProcessedImage> {
 	}
 	const format = meta.format ?? '';
 	const type = ACCEPTED.get(format);
+	if (!svg && !['png', 'jpeg', 'webp'].includes(format)) throw photoTypes();
 	if (!type || (format === 'svg') !== isSvg) throw unsupported();
 
 	try {
@@ -104,7 +117,7 @@ export async function processImage(bytes: Buffer): Promise<ProcessedImage> {
 		const upright = sharp(bytes, input).rotate().flatten({ background: '#ffffff' });
 		const display = await upright
 			.clone()
-			.resize(IMAGE_LIMITS.displayLongSide, IMAGE_LIMITS.displayLongSide, { fit: 'inside', withoutEnlargement: true })
+			.resize(displayLongSide, displayLongSide, { fit: 'inside', withoutEnlargement: true })
 			.webp({ quality: 90 })
 			.toBuffer({ resolveWithObject: true });
 		const thumb = await upright

@@ -3,7 +3,7 @@
  * idempotent or refused as a whole, so a tablet on flaky Wi-Fi can retry anything.
  */
 import { randomUUID } from 'node:crypto';
-import { and, asc, desc, eq, isNull, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { pinPatchSchema, PinInput, StartSampleInput, unitPatchSchema } from '$lib/schemas/sample';
 import { regionsOf, zoneOf, type Point } from '$lib/spatial/zones';
@@ -16,6 +16,7 @@ import {
 	part,
 	partView,
 	pin,
+	pinPhoto,
 	region,
 	sample,
 	sampleUnit,
@@ -27,7 +28,7 @@ import {
 } from './db/schema';
 import { conflict, DomainError, forbidden, notFound } from './errors';
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 const sampleFields = {
 	id: sample.id,
@@ -183,7 +184,7 @@ export async function getSample(orgId: string, sampleId: string) {
 	const [units, pins] = await Promise.all([
 		db().select().from(sampleUnit).where(eq(sampleUnit.sampleId, sampleId)).orderBy(asc(sampleUnit.index)),
 		db()
-			.select(pinFields)
+			.select({ ...pinFields, photos: photoIds })
 			.from(pin)
 			.where(and(eq(pin.sampleId, sampleId), isNull(pin.deletedAt)))
 			.orderBy(asc(pin.createdAt))
@@ -213,6 +214,11 @@ const pinFields = {
 	note: pin.note,
 	createdAt: pin.createdAt
 };
+
+// Spelled out: in a one-table select drizzle leaves column names unqualified, which the subquery would misread.
+const photoIds = sql<
+	string[]
+>`ARRAY(SELECT pp.id::text FROM pin_photo pp WHERE pp.pin_id = "pin"."id" AND pp.deleted_at IS NULL ORDER BY pp.created_at)`;
 
 /** The revision must show the sample's part; its grid and regions place the point. */
 async function placeOn(tx: Tx, orgId: string, partId: string, revisionId: string, point: Point) {
@@ -280,7 +286,7 @@ export async function writePin(access: Access, sampleId: string, input: PinInput
 			return { pin: existing, created: false };
 		}
 		await mayWrite(access, s);
-		if (s.state !== 'open') refuseClosed();
+		const reason = closedChange(access, s, input.reason);
 		if (input.unitIndex > s.unitCount) {
 			throw new DomainError(422, 'invalid', `This sample has ${s.unitCount} units.`, [
 				{ path: 'unitIndex', message: `Pick a unit from 1 to ${s.unitCount}.` }
@@ -288,9 +294,10 @@ export async function writePin(access: Access, sampleId: string, input: PinInput
 		}
 		await usableType(tx, access.org.id, s.partId, input.defectTypeId);
 		const place = await placeOn(tx, access.org.id, s.partId, input.revisionId, [input.x, input.y]);
+		const { reason: _, ...fields } = input;
 		const [row] = await tx
 			.insert(pin)
-			.values({ ...input, ...place, organizationId: access.org.id, sampleId, createdBy: access.user.id })
+			.values({ ...fields, ...place, organizationId: access.org.id, sampleId, createdBy: access.user.id })
 			.onConflictDoNothing({ target: pin.id })
 			.returning(pinFields);
 		if (!row) {
@@ -302,11 +309,21 @@ export async function writePin(access: Access, sampleId: string, input: PinInput
 			.update(sampleUnit)
 			.set({ clean: false })
 			.where(and(eq(sampleUnit.sampleId, sampleId), eq(sampleUnit.index, input.unitIndex)));
+		if (reason) {
+			await audit(tx, access, {
+				action: 'pin.add',
+				subject: 'sample',
+				subjectId: s.id,
+				before: null,
+				after: { pin: row.id, unit: row.unitIndex, x: row.x, y: row.y, defectTypeId: row.defectTypeId },
+				reason
+			});
+		}
 		return { pin: row, created: true };
 	});
 }
 
-async function lockPin(tx: Tx, access: Access, pinId: string) {
+export async function lockPin(tx: Tx, access: Access, pinId: string) {
 	const [p] = await tx
 		.select({ ...pinFields, deletedAt: pin.deletedAt })
 		.from(pin)
@@ -319,7 +336,7 @@ async function lockPin(tx: Tx, access: Access, pinId: string) {
 }
 
 /** After close, only an engineer changes pins, and says why. */
-function closedChange(access: Access, s: SampleRow, reason: string | undefined) {
+export function closedChange(access: Access, s: SampleRow, reason: string | undefined) {
 	if (s.state === 'open') return null;
 	if (!isEngineer(access))
 		throw new DomainError(
@@ -440,6 +457,36 @@ export async function countsByType(sampleId: string) {
 		.orderBy(asc(defectType.position));
 }
 
+/** Where the plan asks for it, every severity A or B defect has a photo before the sample closes. */
+async function requirePhotos(tx: Tx, s: SampleRow) {
+	const [plan] = await tx
+		.select({ photoForSevere: samplingPlan.photoForSevere })
+		.from(samplingPlan)
+		.where(eq(samplingPlan.partId, s.partId));
+	if (!plan?.photoForSevere) return;
+	const missing = await tx
+		.select({ unit: pin.unitIndex, code: defectType.code })
+		.from(pin)
+		.innerJoin(defectType, eq(pin.defectTypeId, defectType.id))
+		.where(
+			and(
+				eq(pin.sampleId, s.id),
+				isNull(pin.deletedAt),
+				inArray(defectType.severity, ['A', 'B']),
+				sql`NOT EXISTS (SELECT 1 FROM ${pinPhoto} WHERE ${pinPhoto.pinId} = ${pin.id} AND ${pinPhoto.deletedAt} IS NULL)`
+			)
+		)
+		.orderBy(asc(pin.unitIndex), asc(pin.createdAt));
+	if (missing.length) {
+		const list = missing.map((m) => `${m.code} on unit ${m.unit}`).join(', ');
+		throw new DomainError(
+			409,
+			'photo_required',
+			`The sampling plan asks for a photo of every severity A or B defect. Still without one: ${list}.`
+		);
+	}
+}
+
 /** Closes a sample once every unit is marked clean or pinned. Closing twice is a no-op. */
 export async function closeSample(access: Access, sampleId: string) {
 	await db().transaction(async (tx) => {
@@ -459,6 +506,7 @@ export async function closeSample(access: Access, sampleId: string) {
 				`Mark every unit first: unit ${list} ${unmarked.length === 1 ? 'is' : 'are'} neither clean nor pinned.`
 			);
 		}
+		await requirePhotos(tx, s);
 		await tx
 			.update(sample)
 			.set({ state: 'closed', closedAt: new Date(), closedBy: access.user.id })

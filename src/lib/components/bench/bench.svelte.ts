@@ -9,6 +9,13 @@ import type { BenchPin } from './types';
 
 type UnitStatus = 'open' | 'clean' | 'pinned';
 
+/** The sample as `GET /api/v1/samples/{id}` and the page's data give it. */
+export interface StoredSample {
+	state: 'open' | 'closed';
+	pins: BenchPin[];
+	units: { index: number; status: UnitStatus }[];
+}
+
 interface Step {
 	undo: () => void;
 	redo: () => void;
@@ -17,6 +24,11 @@ interface Step {
 export class Bench {
 	pins = $state<BenchPin[]>([]);
 	clean = $state<Record<number, boolean>>({});
+	state = $state<'open' | 'closed'>('open');
+	/** An engineer's reason for correcting a closed sample; sent with every change. */
+	reason = $state('');
+	/** Photos taken here and not yet stored, shown from the browser's copy. */
+	localPhotos = $state<Record<string, string>>({});
 	readonly outbox: Outbox;
 	#done: Step[] = [];
 	#undone: Step[] = [];
@@ -26,12 +38,17 @@ export class Bench {
 	constructor(
 		readonly sampleId: string,
 		readonly unitCount: number,
-		serverPins: BenchPin[],
-		serverUnits: { index: number; status: UnitStatus }[]
+		stored: StoredSample
 	) {
-		this.pins = serverPins.map((p) => ({ ...p }));
-		this.clean = Object.fromEntries(serverUnits.map((u) => [u.index, u.status === 'clean']));
+		this.#adopt(stored);
 		this.outbox = new Outbox(sampleId);
+		this.outbox.onrefused = () => void this.resync();
+	}
+
+	#adopt(stored: StoredSample) {
+		this.pins = stored.pins.map((p) => ({ ...p, photos: [...p.photos] }));
+		this.clean = Object.fromEntries(stored.units.map((u) => [u.index, u.status === 'clean']));
+		this.state = stored.state;
 	}
 
 	/** Replays what the outbox still holds (after a reload), then starts sending. */
@@ -40,23 +57,56 @@ export class Bench {
 		void this.outbox.flush();
 	}
 
+	/**
+	 * After a refused change (closed elsewhere, type retired): show what the server really has,
+	 * with the changes still waiting on top, so nothing refused lingers on the drawing.
+	 */
+	async resync() {
+		const res = await fetch(`/api/v1/samples/${this.sampleId}`).catch(() => null);
+		if (!res?.ok) return;
+		this.#adopt(((await res.json()) as { sample: StoredSample }).sample);
+		for (const op of this.outbox.ops) this.#apply(op);
+	}
+
 	#apply(op: Op) {
 		const body = (op.body ?? {}) as Record<string, unknown>;
-		if (op.method === 'POST' && op.path.endsWith('/pins')) {
-			const pin = body as unknown as BenchPin;
-			if (!this.pins.some((p) => p.id === pin.id)) this.pins = [...this.pins, pin];
+		const path = op.path.split('?')[0]!;
+		const photo = /^\/pins\/([^/]+)\/photos\/([^/]+)$/.exec(path);
+		if (op.method === 'POST' && path.endsWith('/pins')) {
+			const { reason: _, ...pin } = body as unknown as BenchPin & { reason?: string };
+			if (!this.pins.some((p) => p.id === pin.id)) this.pins = [...this.pins, { ...pin, photos: [] }];
 			this.clean = { ...this.clean, [pin.unitIndex]: false };
-		} else if (op.path.startsWith('/pins/')) {
-			const id = op.path.slice('/pins/'.length).split('?')[0];
+		} else if (photo) {
+			const [, pinId, photoId] = photo as unknown as [string, string, string];
+			if (op.blob && !this.localPhotos[photoId])
+				this.localPhotos = { ...this.localPhotos, [photoId]: URL.createObjectURL(op.blob) };
+			this.pins = this.pins.map((p) =>
+				p.id === pinId && !p.photos.includes(photoId) ? { ...p, photos: [...p.photos, photoId] } : p
+			);
+		} else if (path.startsWith('/photos/')) {
+			const photoId = path.slice('/photos/'.length);
+			this.pins = this.pins.map((p) => ({ ...p, photos: p.photos.filter((id) => id !== photoId) }));
+		} else if (path.startsWith('/pins/')) {
+			const id = path.slice('/pins/'.length);
+			const { reason: _, ...patch } = body as Partial<BenchPin> & { reason?: string };
 			if (op.method === 'DELETE') this.pins = this.pins.filter((p) => p.id !== id);
-			else this.pins = this.pins.map((p) => (p.id === id ? { ...p, ...(body as Partial<BenchPin>) } : p));
-		} else if (op.path.includes('/units/')) {
-			const index = Number(op.path.split('/units/')[1]);
+			else this.pins = this.pins.map((p) => (p.id === id ? { ...p, ...patch } : p));
+		} else if (path.includes('/units/')) {
+			const index = Number(path.split('/units/')[1]);
 			this.clean = { ...this.clean, [index]: body.clean === true };
 		}
 	}
 
-	#do(op: Omit<Op, 'seq'>) {
+	/** A closed sample changes only with the engineer's reason, which goes with every change. */
+	#withReason(op: Omit<Op, 'seq'>): Omit<Op, 'seq'> {
+		if (this.state === 'open') return op;
+		if (op.method === 'POST' || op.method === 'PATCH')
+			return { ...op, body: { ...(op.body as object), reason: this.reason } };
+		return { ...op, path: `${op.path}?reason=${encodeURIComponent(this.reason)}` };
+	}
+
+	#do(plain: Omit<Op, 'seq'>) {
+		const op = this.#withReason(plain);
 		this.#apply({ ...op, seq: 0 });
 		void this.outbox.push(op);
 	}
@@ -77,7 +127,7 @@ export class Bench {
 		return Array.from({ length: this.unitCount }, (_, i) => i + 1).filter((i) => this.unitStatus(i) === 'open');
 	}
 
-	#create(pin: BenchPin, label: string) {
+	#create({ photos: _, ...pin }: BenchPin, label: string) {
 		this.#do({ method: 'POST', path: `/samples/${this.sampleId}/pins`, body: pin, label });
 	}
 
@@ -85,8 +135,8 @@ export class Bench {
 		this.#do({ method: 'DELETE', path: `/pins/${id}`, label });
 	}
 
-	place(input: Omit<BenchPin, 'id'>, label: string): BenchPin {
-		let pin: BenchPin = { ...input, id: uuidv7() };
+	place(input: Omit<BenchPin, 'id' | 'photos'>, label: string): BenchPin {
+		let pin: BenchPin = { ...input, id: uuidv7(), photos: [] };
 		this.#create(pin, label);
 		this.#record({
 			undo: () => this.#remove(pin.id, `Undo: ${label}`),
@@ -122,6 +172,19 @@ export class Bench {
 			},
 			redo: () => this.#remove(current.id, label)
 		});
+	}
+
+	/** Photos are not undone with the pin's other changes: each has its own remove button. */
+	addPhoto(pinId: string, blob: Blob, label: string) {
+		this.#do({ method: 'PUT', path: `/pins/${pinId}/photos/${uuidv7()}`, blob, label });
+	}
+
+	removePhoto(photoId: string, label: string) {
+		this.#do({ method: 'DELETE', path: `/photos/${photoId}`, label });
+	}
+
+	photoUrl(photoId: string) {
+		return this.localPhotos[photoId] ?? `/api/v1/photos/${photoId}/thumb.webp`;
 	}
 
 	markClean(index: number, clean: boolean) {

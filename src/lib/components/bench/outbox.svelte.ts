@@ -7,9 +7,11 @@ import { createStore, get, set, type UseStore } from 'idb-keyval';
 
 export interface Op {
 	seq: number;
-	method: 'POST' | 'PATCH' | 'DELETE';
+	method: 'POST' | 'PATCH' | 'PUT' | 'DELETE';
 	path: string;
 	body?: unknown;
+	/** A photo, sent as the body as it is (IndexedDB keeps Blobs). */
+	blob?: Blob;
 	/** What the inspector did, in words, for the conflict list. */
 	label: string;
 }
@@ -29,6 +31,9 @@ export class Outbox {
 	offline = $state(false);
 	#key: string;
 	#timer: ReturnType<typeof setTimeout> | undefined;
+
+	/** Told when the server refused a change, so the view can fetch what is really stored. */
+	onrefused: (() => void) | undefined;
 
 	constructor(sampleId: string) {
 		this.#key = `sample:${sampleId}`;
@@ -63,8 +68,12 @@ export class Outbox {
 				try {
 					res = await fetch(`/api/v1${op.path}`, {
 						method: op.method,
-						headers: op.body === undefined ? {} : { 'content-type': 'application/json' },
-						body: op.body === undefined ? undefined : JSON.stringify(op.body)
+						headers: op.blob
+							? { 'content-type': op.blob.type || 'application/octet-stream' }
+							: op.body === undefined
+								? {}
+								: { 'content-type': 'application/json' },
+						body: op.blob ?? (op.body === undefined ? undefined : JSON.stringify(op.body))
 					});
 				} catch {
 					this.offline = true;
@@ -87,6 +96,7 @@ export class Outbox {
 						{ label: op.label, message: body?.error?.message ?? `Refused (${res.status}).` }
 					];
 					await this.#drop(op.seq);
+					this.onrefused?.();
 				} else {
 					// Signed out, rate-limited or a server hiccup: keep it and try again later.
 					this.#retry();

@@ -17,6 +17,8 @@ export interface BenchPin {
 	x: number;
 	y: number;
 	note: string;
+	/** Ids of the pin's photos, oldest first. */
+	photos: string[];
 }
 
 export interface BenchView {

@@ -95,3 +95,27 @@ export const pin = pgTable(
 	},
 	(t) => [index().on(t.sampleId, t.unitIndex), index().on(t.revisionId), index().on(t.organizationId, t.defectTypeId)]
 );
+
+/**
+ * A photo of a pinned defect. Only the upright, metadata-free renditions are kept: a phone's
+ * original carries the place and time it was taken, which the plant has no use for.
+ */
+export const pinPhoto = pgTable(
+	'pin_photo',
+	{
+		/** Made by the client (UUIDv7), like a pin's, so a retried upload is stored once. */
+		id: uuid().primaryKey(),
+		organizationId: organizationId(),
+		pinId: uuid()
+			.notNull()
+			.references(() => pin.id, { onDelete: 'cascade' }),
+		displayKey: text().notNull(),
+		thumbKey: text().notNull(),
+		width: integer().notNull(),
+		height: integer().notNull(),
+		createdBy: text().references(() => user.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		deletedAt: timestamp({ withTimezone: true })
+	},
+	(t) => [index().on(t.pinId)]
+);

@@ -1,5 +1,5 @@
 import { json } from '@sveltejs/kit';
-import { pinDeleteSchema, pinPatchSchema } from '$lib/schemas/sample';
+import { correctionQuerySchema, pinPatchSchema } from '$lib/schemas/sample';
 import { requireRole } from '$lib/server/access';
 import { answer, readJson, validate } from '$lib/server/http';
 import { deletePin, updatePin } from '$lib/server/samples';
@@ -16,7 +16,7 @@ export const PATCH: RequestHandler = (event) =>
 export const DELETE: RequestHandler = (event) =>
 	answer(async () => {
 		const access = requireRole(event, 'inspector', 'engineer');
-		const { reason } = validate(pinDeleteSchema, { reason: event.url.searchParams.get('reason') ?? undefined });
+		const { reason } = validate(correctionQuerySchema, { reason: event.url.searchParams.get('reason') ?? undefined });
 		await deletePin(access, event.params.pinId, reason);
 		return new Response(null, { status: 204 });
 	});
