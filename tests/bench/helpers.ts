@@ -1,10 +1,15 @@
 /**
  * What the benchmark runner and its *.bench.ts files share: the context the runner hands each
  * benchmark, the report a benchmark hands back, an HTTP session with a cookie jar, percentiles,
- * a plain aligned table, and CPU time read from /proc. Figures only; nothing here ever fails on speed.
+ * a plain aligned table, CPU time read from /proc, Debian's Chromium, and the demo's rows looked
+ * up in the database (with a sample made there). Figures only; nothing here ever fails on speed.
  */
+import { randomUUID } from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
+import { chromium, type Browser, type BrowserContext } from '@playwright/test';
+import type postgres from 'postgres';
+import type { MarkerColour, MarkerShape } from '../../src/lib/markers';
 
 /** What run.ts started for this run, all on 127.0.0.1. */
 export interface BenchContext {
@@ -207,4 +212,141 @@ export function cpuSecondsOfTree(root: number | null): number | null {
 		queue.push(...(children.get(pid) ?? []));
 	}
 	return total;
+}
+
+/** The demo's password, the same for every demo user (src/lib/server/config.ts). */
+export const DEMO_PASSWORD = 'pin-the-defects';
+
+/** Debian's Chromium, headless, as the end-to-end tests run it; never a downloaded browser. */
+export function launchChromium(): Promise<Browser> {
+	return chromium.launch({
+		executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+		headless: true,
+		args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking']
+	});
+}
+
+/**
+ * A context of `browser` whose pages can run functions compiled by tsx: tsx (esbuild's keepNames)
+ * wraps named inner functions in `__name(fn, "name")`, which page.evaluate carries into the page,
+ * where no `__name` exists. Every document of the context gets a do-nothing one first.
+ */
+export async function newContext(browser: Browser, options: Parameters<Browser['newContext']>[0] = {}) {
+	const context = await browser.newContext(options);
+	await context.addInitScript({ content: 'globalThis.__name = (fn) => fn;' });
+	return context;
+}
+
+/**
+ * Signs a browser context in through the sign-in form (as a browser without JavaScript does), so
+ * its pages start signed in and the sign-in itself is not part of what they measure.
+ */
+export async function signInContext(context: BrowserContext, base: string, email: string, password = DEMO_PASSWORD) {
+	const res = await context.request.post(`${base}/sign-in`, {
+		form: { email, password },
+		headers: { origin: base, accept: 'text/html' },
+		maxRedirects: 0,
+		timeout: 30_000
+	});
+	if (res.status() !== 303) throw new Error(`Signing in as ${email} answered ${res.status()}: ${(await res.text()).slice(0, 300)}`);
+	if (!(await context.cookies(base)).length) throw new Error(`Signing in as ${email} set no cookie.`);
+}
+
+export interface DemoType {
+	id: string;
+	code: string;
+	colour: MarkerColour;
+	shape: MarkerShape;
+}
+
+/** The seeded demo as the database has it: FW-118, its Front view's newest revision, its types. */
+export interface Demo {
+	orgId: string;
+	partId: string;
+	/** User ids by e-mail. */
+	users: Map<string, string>;
+	front: { revisionId: string; width: number; height: number; gridColumns: number | null; gridRows: number | null };
+	/** The active types the Bench offers for FW-118, in palette order. */
+	types: DemoType[];
+}
+
+export async function demoRows(sql: postgres.Sql): Promise<Demo> {
+	const [p] = await sql<{ orgId: string; partId: string }[]>`
+		SELECT p.organization_id AS "orgId", p.id AS "partId"
+		FROM part p JOIN organization o ON o.id = p.organization_id
+		WHERE o.slug = 'fernwick' AND p.number = 'FW-118'`;
+	if (!p) throw new Error('The demo part FW-118 is not there (was the demo seeded?).');
+	const users = await sql<{ id: string; email: string }[]>`
+		SELECT u.id, u.email FROM "user" u JOIN member m ON m.user_id = u.id WHERE m.organization_id = ${p.orgId}`;
+	const [front] = await sql<Demo['front'][]>`
+		SELECT r.id AS "revisionId", r.width, r.height, r.grid_columns AS "gridColumns", r.grid_rows AS "gridRows"
+		FROM part_view v JOIN view_revision r ON r.view_id = v.id
+		WHERE v.part_id = ${p.partId} AND v.name = 'Front'
+		ORDER BY r.revision DESC LIMIT 1`;
+	if (!front) throw new Error('FW-118 has no Front drawing.');
+	const types = await sql<DemoType[]>`
+		SELECT t.id, t.code, t.colour, t.shape FROM defect_type t
+		WHERE t.organization_id = ${p.orgId} AND t.retired_at IS NULL
+			AND (t.all_parts OR EXISTS (SELECT 1 FROM defect_type_part dp WHERE dp.defect_type_id = t.id AND dp.part_id = ${p.partId}))
+		ORDER BY t.position, t.code`;
+	if (!types.length) throw new Error('FW-118 has no active defect type.');
+	return { ...p, users: new Map(users.map((u) => [u.email, u.id])), front, types };
+}
+
+export interface SeededPin {
+	unitIndex: number;
+	defectTypeId: string;
+	x: number;
+	y: number;
+	zone: string | null;
+}
+
+/**
+ * An open sample of FW-118 written straight into the database, with its units and pins on the
+ * Front view. Units listed in `clean` are marked clean. Returns its id; `sql` deletes it again
+ * with `deleteSample` (units and pins go with it).
+ */
+export async function insertSample(
+	sql: postgres.Sql,
+	demo: Demo,
+	inspectorEmail: string,
+	options: { units: number; clean?: number[]; pins?: SeededPin[] }
+): Promise<string> {
+	const inspectorId = demo.users.get(inspectorEmail);
+	if (!inspectorId) throw new Error(`${inspectorEmail} is not a member of the demo organisation.`);
+	const id = randomUUID();
+	const clean = new Set(options.clean ?? []);
+	await sql.begin(async (tx) => {
+		await tx`
+			INSERT INTO sample (id, organization_id, part_id, inspector_id, size, unit_count, state)
+			VALUES (${id}, ${demo.orgId}, ${demo.partId}, ${inspectorId}, ${options.units}, ${options.units}, 'open')`;
+		const units = Array.from({ length: options.units }, (_, i) => ({
+			sample_id: id,
+			index: i + 1,
+			clean: clean.has(i + 1)
+		}));
+		await tx`INSERT INTO sample_unit ${tx(units)}`;
+		const pins = (options.pins ?? []).map((p, i) => ({
+			id: randomUUID(),
+			organization_id: demo.orgId,
+			sample_id: id,
+			unit_index: p.unitIndex,
+			revision_id: demo.front.revisionId,
+			defect_type_id: p.defectTypeId,
+			x: p.x,
+			y: p.y,
+			zone: p.zone,
+			note: '',
+			created_by: inspectorId,
+			// Distinct times keep the Bench's order (oldest first) the order they were made in.
+			created_at: new Date(Date.UTC(2026, 0, 5, 8) + i)
+		}));
+		// 1,000 rows of 12 columns stay well under PostgreSQL's 65,535 parameters per statement.
+		for (let i = 0; i < pins.length; i += 1_000) await tx`INSERT INTO pin ${tx(pins.slice(i, i + 1_000))}`;
+	});
+	return id;
+}
+
+export async function deleteSample(sql: postgres.Sql, sampleId: string): Promise<void> {
+	await sql`DELETE FROM sample WHERE id = ${sampleId}`;
 }
