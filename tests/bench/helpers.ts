@@ -248,7 +248,8 @@ export async function signInContext(context: BrowserContext, base: string, email
 		maxRedirects: 0,
 		timeout: 30_000
 	});
-	if (res.status() !== 303) throw new Error(`Signing in as ${email} answered ${res.status()}: ${(await res.text()).slice(0, 300)}`);
+	if (res.status() !== 303)
+		throw new Error(`Signing in as ${email} answered ${res.status()}: ${(await res.text()).slice(0, 300)}`);
 	if (!(await context.cookies(base)).length) throw new Error(`Signing in as ${email} set no cookie.`);
 }
 
