@@ -84,6 +84,6 @@ test("another organisation's part, drawing, type and tool are not found (404)", 
 	}
 	const partUrl = writes[1][1];
 	expect((await other.request.get(partUrl)).status()).toBe(404);
-	expect((await other.request.get(`${partUrl}/history`)).status()).toBe(404);
+	expect((await other.request.get(`${partUrl}/changes`)).status()).toBe(404);
 	await ctx.close();
 });

@@ -27,6 +27,8 @@ import {
 	viewRevision
 } from './db/schema';
 import { conflict, DomainError, forbidden, notFound } from './errors';
+import { enqueueEvaluation } from './jobs';
+import { publish } from './live';
 
 export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
@@ -457,6 +459,19 @@ export async function countsByType(sampleId: string) {
 		.orderBy(asc(defectType.position));
 }
 
+/**
+ * A closed sample is news: live charts redraw, and signals are looked for in the background. The
+ * close itself is already stored; if either fails it is logged, and the next close looks again.
+ */
+async function afterClose(orgId: string, partId: string, sampleId: string) {
+	try {
+		await publish({ type: 'sample.closed', orgId, partId, sampleId });
+		await enqueueEvaluation(orgId, partId);
+	} catch (e) {
+		console.error(`[stipple] after closing ${sampleId}: ${e instanceof Error ? e.message : String(e)}`);
+	}
+}
+
 /** Where the plan asks for it, every severity A or B defect has a photo before the sample closes. */
 async function requirePhotos(tx: Tx, s: SampleRow) {
 	const [plan] = await tx
@@ -489,10 +504,10 @@ async function requirePhotos(tx: Tx, s: SampleRow) {
 
 /** Closes a sample once every unit is marked clean or pinned. Closing twice is a no-op. */
 export async function closeSample(access: Access, sampleId: string) {
-	await db().transaction(async (tx) => {
+	const closed = await db().transaction(async (tx) => {
 		const s = await lockSample(tx, access.org.id, sampleId, 'update');
 		await mayWrite(access, s);
-		if (s.state === 'closed') return;
+		if (s.state === 'closed') return null;
 		const unmarked = await tx.execute<{ index: number }>(sql`
 			SELECT u.index FROM ${sampleUnit} u
 			WHERE u.sample_id = ${sampleId} AND NOT u.clean
@@ -511,7 +526,9 @@ export async function closeSample(access: Access, sampleId: string) {
 			.update(sample)
 			.set({ state: 'closed', closedAt: new Date(), closedBy: access.user.id })
 			.where(eq(sample.id, sampleId));
+		return s;
 	});
+	if (closed) await afterClose(access.org.id, closed.partId, sampleId);
 	return { sample: await getSample(access.org.id, sampleId), counts: await countsByType(sampleId) };
 }
 

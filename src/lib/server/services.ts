@@ -8,6 +8,7 @@ import { closeDb, migrateDb } from './db';
 import { startLocalCluster, type LocalCluster } from './db/local-cluster';
 import { dataRoot, authSecret, DEMO_PASSWORD } from './config';
 import { startMailCatcher, type MailCatcher } from './mail-catcher';
+import { startJobs, stopJobs } from './jobs';
 import { closeMail } from './mail';
 import { seedDemoOnce, DEMO_USERS } from './seed';
 import { closeStorage, ensureBucket, startLocalS3, type LocalS3 } from './storage';
@@ -50,10 +51,12 @@ async function start() {
 		log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`);
 		for (const u of DEMO_USERS) log(`  ${u.role.padEnd(9)} ${u.email}`);
 	}
+	await startJobs();
 	process.once('sveltekit:shutdown', () => void stopServices());
 }
 
 export async function stopServices() {
+	await stopJobs();
 	closeMail();
 	closeStorage();
 	await catcher?.stop();

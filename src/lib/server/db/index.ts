@@ -30,6 +30,11 @@ function connect(): Connection {
 	return connection;
 }
 
+/** The postgres.js client under Drizzle, for LISTEN / NOTIFY. */
+export function sqlClient(): postgres.Sql {
+	return connect().client;
+}
+
 /** The shared Drizzle client. */
 export function db(): Db {
 	return connect().db;

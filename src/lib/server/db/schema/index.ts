@@ -3,3 +3,4 @@ export * from './system';
 export * from './catalogue';
 export * from './quality';
 export * from './inspection';
+export * from './control';
