@@ -8,6 +8,10 @@ import { getPlan } from '../../src/lib/server/plans';
 import sharp from 'sharp';
 import { DEMO_ORG, DEMO_USERS, seedDemoOnce } from '../../src/lib/server/seed';
 import { signIn } from '../../src/lib/server/accounts';
+import { chartFor } from '../../src/lib/server/charts';
+import { listSignals } from '../../src/lib/server/signals';
+import { chartQuerySchema } from '../../src/lib/schemas/chart';
+import { signalListSchema } from '../../src/lib/schemas/signal';
 import { DEMO_PASSWORD } from '../../src/lib/server/config';
 
 describe('start-up steps', () => {
@@ -28,6 +32,16 @@ describe('start-up steps', () => {
 		expect(mould?.cavityCount).toBe(4);
 		const parts = await db().select().from(part).where(eq(part.organizationId, org!.id));
 		expect(parts.map((p) => p.number)).toEqual(['FW-118']);
+
+		// Its invented past: 30 paper samples (limits frozen from them), 56 Bench samples, a few signals.
+		const history = await chartFor(org!.id, parts[0]!.id, chartQuerySchema.parse({}));
+		expect(history.points.filter((p) => p.source === 'history')).toHaveLength(30);
+		expect(history.points.filter((p) => p.source === 'bench')).toHaveLength(56);
+		expect(history.limitSet).toMatchObject({ state: 'frozen', sampleCount: 30 });
+		const signals = await listSignals(org!.id, signalListSchema.parse({ part: parts[0]!.id }));
+		// The worn gate insert of cavity 3 puts its later samples above the frozen UCL.
+		expect(signals.filter((s) => s.rule === 'beyond-limit').length).toBeGreaterThanOrEqual(2);
+		expect(signals.filter((s) => s.state === 'explained')).toHaveLength(1);
 
 		// Its two drawings are in object storage, rasterised from the SVG, each with a thumbnail.
 		const views = await db()

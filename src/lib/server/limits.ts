@@ -62,7 +62,7 @@ function chooseBaseline(all: RolledSample[], baseline: Baseline, exclusions: Exc
 }
 
 /** The parameters frozen into a set, from the kept baseline samples (all three, whatever the method). */
-function parameters(kept: RolledSample[]) {
+export function limitParameters(kept: Pick<RolledSample, 'count' | 'size' | 'classes'>[]) {
 	const counts = kept.map((s) => ({ count: s.count, size: s.size }));
 	const rate = pooledRate(counts);
 	return {
@@ -92,7 +92,7 @@ export async function createLimitSet(access: Access, partId: string, input: Limi
 				baselineTo: 'from' in input.baseline ? new Date(input.baseline.to) : null,
 				baselineSamples: 'samples' in input.baseline ? chosen.map((s) => s.sample) : null,
 				exclusions: input.exclusions,
-				...parameters(kept),
+				...limitParameters(kept),
 				appliesFrom,
 				note: input.note,
 				createdBy: access.user.id
@@ -127,7 +127,7 @@ export async function updateLimitSet(access: Access, id: string, patch: z.infer<
 	return db().transaction(async (tx) => {
 		const [row] = await tx
 			.update(limitSet)
-			.set({ exclusions, ...parameters(kept), ...(patch.note !== undefined ? { note: patch.note } : {}) })
+			.set({ exclusions, ...limitParameters(kept), ...(patch.note !== undefined ? { note: patch.note } : {}) })
 			.where(and(eq(limitSet.id, id), eq(limitSet.state, 'trial')))
 			.returning();
 		if (!row) refuseFrozen();

@@ -19,6 +19,7 @@ import {
 	partView,
 	region,
 	samplingPlan,
+	signal,
 	tool,
 	toolPart,
 	user,
@@ -29,6 +30,8 @@ import type { MarkerColour, MarkerShape, Severity } from '$lib/markers';
 import { frontViewSvg, sectionViewSvg } from './demo-drawing';
 import { storeRevision } from './drawings';
 import { processImage } from './images';
+import { seedDemoHistory } from './demo-history';
+import { evaluateSignals } from './signals';
 
 export const DEMO_ORG = { name: 'Fernwick Moulding Works', slug: 'fernwick' };
 
@@ -134,7 +137,7 @@ export async function seedDemoOnce(): Promise<boolean> {
 	const drawings = await Promise.all(
 		[frontViewSvg(), sectionViewSvg()].map((svg) => processImage(Buffer.from(svg, 'utf8')))
 	);
-	return db().transaction(async (tx) => {
+	const seeded = await db().transaction(async (tx) => {
 		// Two instances starting together: the second waits here, then finds the flag.
 		await tx.execute(sql`SELECT pg_advisory_xact_lock(7301846)`);
 		const claimed = await tx
@@ -142,12 +145,14 @@ export async function seedDemoOnce(): Promise<boolean> {
 			.values({ key: SEEDED_KEY, value: { at: new Date().toISOString() } })
 			.onConflictDoNothing()
 			.returning();
-		if (claimed.length === 0) return false;
+		if (claimed.length === 0) return null;
+		const userIds: Partial<Record<Role, string>> = {};
 
 		const orgId = randomUUID();
 		await tx.insert(organization).values({ id: orgId, ...DEMO_ORG });
 		for (const [i, u] of DEMO_USERS.entries()) {
 			const userId = randomUUID();
+			userIds[u.role] = userId;
 			await tx.insert(user).values({ id: userId, name: u.name, email: u.email, emailVerified: true });
 			await tx.insert(account).values({
 				id: randomUUID(),
@@ -209,7 +214,7 @@ export async function seedDemoOnce(): Promise<boolean> {
 		const types = await tx
 			.insert(defectType)
 			.values(DEMO_TYPES.map((t, position) => ({ ...t, organizationId: orgId, position })))
-			.returning({ id: defectType.id });
+			.returning({ id: defectType.id, code: defectType.code, severity: defectType.severity });
 		await tx.insert(samplingPlan).values({
 			partId: grille.id,
 			organizationId: orgId,
@@ -220,6 +225,37 @@ export async function seedDemoOnce(): Promise<boolean> {
 			defectTypeIds: types.map((t) => t.id),
 			photoForSevere: true
 		});
-		return true;
+		await seedDemoHistory(tx, {
+			orgId,
+			partId: grille.id,
+			toolId: mould.id,
+			inspectorId: userIds.inspector!,
+			engineerId: userIds.engineer!,
+			frontRevisionId: front.id,
+			sectionRevisionId: revisions[1]!.id,
+			grid: { columns: 8, rows: 5 },
+			regions: DEMO_REGIONS,
+			types
+		});
+		return { orgId, partId: grille.id, engineerId: userIds.engineer! };
 	});
+	if (!seeded) return false;
+	// The signals of the demo's history, as the background job would have raised them; the first
+	// one already explained by the engineer.
+	const raised = await evaluateSignals(seeded.orgId, seeded.partId);
+	if (raised[0]) {
+		await db()
+			.update(signal)
+			.set({
+				state: 'explained',
+				cause: 'Gate insert of cavity 3 worn; short shots near the gate.',
+				action: 'Repair of the insert requested from the toolroom.',
+				acknowledgedBy: seeded.engineerId,
+				acknowledgedAt: new Date(),
+				explainedBy: seeded.engineerId,
+				explainedAt: new Date()
+			})
+			.where(eq(signal.id, raised[0]));
+	}
+	return true;
 }
