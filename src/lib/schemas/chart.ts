@@ -25,26 +25,28 @@ export const chartFiltersSchema = z.object({
 export type ChartFilters = z.infer<typeof chartFiltersSchema>;
 
 /** `GET /api/v1/parts/{partId}/chart` query. Empty values count as absent. */
+export const chartQueryFields = chartFiltersSchema.extend({
+	method: z.enum(CHART_METHODS, { error: `Method is one of ${CHART_METHODS.join(', ')}.` }).default('u'),
+	from: when.optional(),
+	to: when.optional(),
+	limitSet: id.optional(),
+	k: z.coerce.number({ error: 'k is a number.' }).min(1, 'k is at least 1.').max(6, 'k is at most 6.').optional(),
+	/** Run rules switched off, comma-separated ids. */
+	off: z
+		.string()
+		.transform((v) => v.split(',').map((r) => r.trim()))
+		.pipe(z.array(z.enum(RULE_IDS, { error: `Rules are ${RULE_IDS.join(', ')}.` })))
+		.optional(),
+	/** Points in a row on one side that make a run (7–9). */
+	run: z.coerce.number().int('The run length is a whole number.').min(7).max(9).optional()
+});
+
 export const chartQuerySchema = z.preprocess(
 	(raw) =>
 		raw && typeof raw === 'object'
 			? Object.fromEntries(Object.entries(raw).filter(([, v]) => v !== '' && v !== undefined && v !== null))
 			: raw,
-	chartFiltersSchema.extend({
-		method: z.enum(CHART_METHODS, { error: `Method is one of ${CHART_METHODS.join(', ')}.` }).default('u'),
-		from: when.optional(),
-		to: when.optional(),
-		limitSet: id.optional(),
-		k: z.coerce.number({ error: 'k is a number.' }).min(1, 'k is at least 1.').max(6, 'k is at most 6.').optional(),
-		/** Run rules switched off, comma-separated ids. */
-		off: z
-			.string()
-			.transform((v) => v.split(',').map((r) => r.trim()))
-			.pipe(z.array(z.enum(RULE_IDS, { error: `Rules are ${RULE_IDS.join(', ')}.` })))
-			.optional(),
-		/** Points in a row on one side that make a run (7–9). */
-		run: z.coerce.number().int('The run length is a whole number.').min(7).max(9).optional()
-	})
+	chartQueryFields
 );
 export type ChartQuery = z.infer<typeof chartQuerySchema>;
 
