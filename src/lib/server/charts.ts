@@ -92,6 +92,8 @@ export function judge(samples: RolledSample[], set: LimitSetRow | null, o: Optio
 		...(o.run ? { runLength: o.run } : {})
 	};
 	const baseline = set ? baselineOf(set) : undefined;
+	// Nothing to estimate from: an empty chart, not an error.
+	if (!samples.length && !set) return { method: o.method, k, center: 0, baseline: {}, points: [] };
 	if (o.method === 'demerits') {
 		return chart(
 			'demerits',

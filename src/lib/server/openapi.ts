@@ -8,6 +8,7 @@ import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObj
 import { chartQueryFields, limitSetPatchSchema, limitSetSchema } from '$lib/schemas/chart';
 import { defectTypeCreateSchema, defectTypePatchSchema } from '$lib/schemas/defect';
 import { gridSchema, regionSchema } from '$lib/schemas/drawing';
+import { historyUploadQuerySchema } from '$lib/schemas/history';
 import { partPatchSchema, partQuerySchema, partSchema, viewSchema } from '$lib/schemas/part';
 import { samplingPlanSchema } from '$lib/schemas/plan';
 import {
@@ -213,12 +214,21 @@ const paths: ZodOpenApiPathsObject = {
 			requestParams: { path: id('limitSetId') }
 		})
 	},
+	'/history-imports/{importId}': {
+		delete: op(
+			'Remove an imported file and its rows',
+			['Trends'],
+			{ requestParams: { path: id('importId') } },
+			{ status: '204', description: 'Removed' }
+		)
+	},
 	'/parts/{partId}/history': {
+		get: op('Earlier imports of count-only history', ['Trends'], { requestParams: { path: id('partId') } }),
 		post: op(
 			'Import count-only history: CSV with sample,taken_at,size,count[,defect_type,tool,cavity,shift,lot]; all or nothing',
 			['Trends'],
 			{
-				requestParams: { path: id('partId') },
+				requestParams: { path: id('partId'), query: historyUploadQuerySchema },
 				requestBody: {
 					content: {
 						'text/csv': {

@@ -1,13 +1,33 @@
 import { json } from '@sveltejs/kit';
+import { HISTORY_LIMITS, historyUploadQuerySchema } from '$lib/schemas/history';
 import { requireRole } from '$lib/server/access';
-import { historyOf } from '$lib/server/audit';
-import { answer } from '$lib/server/http';
-import { getPart } from '$lib/server/parts';
+import { DomainError } from '$lib/server/errors';
+import { importHistory, listImports } from '$lib/server/history';
+import { answer, readUpload, validate } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
 	answer(async () => {
 		const { org } = requireRole(event);
-		await getPart(org.id, event.params.partId);
-		return json({ history: await historyOf(org.id, 'part', event.params.partId) });
+		return json({ imports: await listImports(org.id, event.params.partId) });
+	});
+
+// The body is the CSV file itself; `?name=` is its file name, kept for the list of imports.
+export const POST: RequestHandler = (event) =>
+	answer(async () => {
+		const access = requireRole(event, 'engineer');
+		const type = (event.request.headers.get('content-type') ?? '').toLowerCase();
+		if (!type.startsWith('text/csv')) {
+			throw new DomainError(415, 'unsupported_media_type', 'Send the file as text/csv.');
+		}
+		const { name } = validate(historyUploadQuerySchema, { name: event.url.searchParams.get('name') ?? undefined });
+		const bytes = await readUpload(event.request, HISTORY_LIMITS.maxBytes);
+		let text: string;
+		try {
+			// TextDecoder drops a byte-order mark (spreadsheets like to write one).
+			text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+		} catch {
+			throw new DomainError(422, 'not_utf8', 'The file is not UTF-8 text. Save it as “CSV UTF-8” and try again.');
+		}
+		return json(await importHistory(access, event.params.partId, text, name), { status: 201 });
 	});
