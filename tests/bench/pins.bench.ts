@@ -119,8 +119,12 @@ async function discover(session: HttpSession): Promise<Ids> {
 	);
 	const revisionId = views[0]?.revisions[0]?.id;
 	if (!revisionId) throw new Error('FW-118 has no drawing revision.');
-	const { defectTypes } = await session.json<{ defectTypes: { id: string }[] }>('GET', '/api/v1/defect-types');
-	const defectTypeId = defectTypes[0]?.id;
+	const { defectTypes } = await session.json<{ defectTypes: { id: string; severity: string }[] }>(
+		'GET',
+		'/api/v1/defect-types'
+	);
+	// A minor type: the demo plan wants photos of A and B defects before a sample closes.
+	const defectTypeId = defectTypes.find((t) => t.severity === 'D')?.id;
 	if (!defectTypeId) throw new Error('The demo catalogue has no defect type.');
 	return { orgId: me.organization.id, userId: me.user.id, partId: part.id, revisionId, defectTypeId };
 }

@@ -164,8 +164,11 @@ test('an engineer corrects a pin of a closed sample, with a reason that lands in
 	await page.getByRole('button', { name: 'Correct pins' }).click();
 	await expect(page.getByRole('button', { name: 'Done correcting' })).toBeVisible();
 
-	// Drag the pin from (0.3, 0.3) to (0.7, 0.5).
-	const box = await drawingRect(page, front);
+	// Tap the pin to pick it, then drag it from (0.3, 0.3) to (0.7, 0.5).
+	let box = await drawingRect(page, front);
+	await page.mouse.click(box.x + 0.3 * box.w, box.y + 0.3 * box.h);
+	await expect(page.getByRole('complementary', { name: 'Selected pin' })).toBeVisible();
+	box = await drawingRect(page, front); // the pin panel took room beside the drawing
 	await page.mouse.move(box.x + 0.3 * box.w, box.y + 0.3 * box.h);
 	await page.mouse.down();
 	await page.mouse.move(box.x + 0.5 * box.w, box.y + 0.4 * box.h, { steps: 5 });

@@ -22,8 +22,9 @@ interface Step {
 }
 
 export class Bench {
-	pins = $state<BenchPin[]>([]);
-	clean = $state<Record<number, boolean>>({});
+	// Raw: always replaced, never mutated in place, so thousands of pins carry no proxies.
+	pins = $state.raw<BenchPin[]>([]);
+	clean = $state.raw<Record<number, boolean>>({});
 	state = $state<'open' | 'closed'>('open');
 	/** An engineer's reason for correcting a closed sample; sent with every change. */
 	reason = $state('');
