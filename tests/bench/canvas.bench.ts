@@ -538,9 +538,8 @@ export default defineBench({
 			);
 			lines.push(
 				`canvas ${box.width.toFixed(0)} × ${box.height.toFixed(0)} px in a ${VIEWPORT.width} × ${VIEWPORT.height} viewport at zoom 2.25, ` +
-					`${PINS} pins of ${demo.types.length} types on unit 1 of the Front view; presses start where no pin is within ${REACH} px (else the Bench drags the pin)`,
-				`Bench: a press pans only where no marker is within ${REACH} px, elsewhere it drags that pin: ` +
-					`${(100 * shareAtFit).toFixed(1)}% of the canvas at zoom 1, ${(100 * shareZoomed).toFixed(1)}% at zoom 2.25`,
+					`${PINS} pins of ${demo.types.length} types on unit 1 of the Front view; presses start where no pin is within ${REACH} px, the same path on both pages ` +
+					`(${(100 * shareAtFit).toFixed(1)}% of the canvas at zoom 1, ${(100 * shareZoomed).toFixed(1)}% at zoom 2.25; the Bench drags only a selected pin)`,
 				'note: headless Chromium with --disable-gpu draws the canvas in software and paces frames itself; frame times are approximate, ' +
 					'the main-thread figures (Chromium TaskDuration) are the steadier comparison'
 			);
