@@ -4,6 +4,7 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { svelteKitHandler } from 'better-auth/svelte-kit';
 import { auth } from '$lib/server/auth';
 import { CODE_FOR_STATUS, jsonError } from '$lib/server/http';
+import { recall, remember } from '$lib/server/session-memo';
 import { resolveContext } from '$lib/server/orgs';
 import { startServices } from '$lib/server/services';
 
@@ -17,14 +18,25 @@ const identify: Handle = async ({ event, resolve }) => {
 	event.locals.sessionId = null;
 	event.locals.org = null;
 	event.locals.role = null;
-	const found = await auth().api.getSession({ headers: event.request.headers });
-	if (found) {
-		const { user, session } = found;
-		event.locals.user = { id: user.id, name: user.name, email: user.email };
-		event.locals.sessionId = session.id;
-		const ctx = await resolveContext(user.id, session.id, session.activeOrganizationId ?? null);
-		event.locals.org = ctx.org;
-		event.locals.role = ctx.role;
+	const cookie = event.request.headers.get('cookie') ?? '';
+	const known = cookie ? recall(cookie) : null;
+	if (known) {
+		Object.assign(event.locals, known);
+	} else {
+		const found = await auth().api.getSession({ headers: event.request.headers });
+		if (found) {
+			const { user, session } = found;
+			const ctx = await resolveContext(user.id, session.id, session.activeOrganizationId ?? null);
+			const identity = {
+				user: { id: user.id, name: user.name, email: user.email },
+				sessionId: session.id,
+				org: ctx.org,
+				role: ctx.role
+			};
+			Object.assign(event.locals, identity);
+			// Only a plain page or API request: better-auth's own routes may change the session.
+			if (!event.url.pathname.startsWith('/api/auth')) remember(cookie, identity, session.expiresAt);
+		}
 	}
 	return svelteKitHandler({ event, resolve, auth: auth(), building });
 };

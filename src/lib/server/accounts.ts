@@ -1,4 +1,5 @@
 /** Signing up, in and out, and resetting a password: better-auth behind Stipple's own rules. */
+import { forgetSessions } from './session-memo';
 import { APIError } from 'better-auth/api';
 import type { z } from 'zod';
 import type { requestResetSchema, resetPasswordSchema, signInSchema, signUpSchema } from '$lib/schemas/auth';
@@ -68,6 +69,8 @@ export async function signOut(caller: Caller) {
 	} catch (e) {
 		// Signing out of a session that has already ended is not an error worth showing.
 		if (!(e instanceof APIError)) throw e;
+	} finally {
+		forgetSessions();
 	}
 }
 
@@ -87,6 +90,7 @@ export async function requestPasswordReset(caller: Caller, input: z.infer<typeof
 export async function resetPassword(input: z.infer<typeof resetPasswordSchema>) {
 	try {
 		await auth().api.resetPassword({ body: { token: input.token, newPassword: input.password } });
+		forgetSessions(); // the reset ended every session of the account
 	} catch (e) {
 		if (e instanceof APIError && e.statusCode === 400) {
 			throw new DomainError(

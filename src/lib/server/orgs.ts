@@ -1,4 +1,5 @@
 /** Organisations a user belongs to, the active one, and creating a new one. */
+import { forgetSessions } from './session-memo';
 import { and, asc, eq } from 'drizzle-orm';
 import { isRole, type Role } from '$lib/roles';
 import { auth } from './auth';
@@ -60,6 +61,7 @@ export async function createOrganisation(caller: Caller, input: { name: string }
 		});
 		if (!org) throw new DomainError(400, 'not_created', 'The organisation could not be created.');
 		await auth().api.setActiveOrganization({ body: { organizationId: org.id }, headers: caller.headers });
+		forgetSessions();
 		return { id: org.id, name: org.name };
 	} catch (e) {
 		return fromAuthError(e);
@@ -74,6 +76,7 @@ export async function switchOrganisation(caller: Caller, userId: string, organiz
 	if (!row) throw notFound('That organisation');
 	try {
 		await auth().api.setActiveOrganization({ body: { organizationId }, headers: caller.headers });
+		forgetSessions();
 	} catch (e) {
 		return fromAuthError(e);
 	}

@@ -224,21 +224,21 @@ const photoIds = sql<
 
 /** The revision must show the sample's part; its grid and regions place the point. */
 async function placeOn(tx: Tx, orgId: string, partId: string, revisionId: string, point: Point) {
-	const [rev] = await tx
-		.select({ columns: viewRevision.gridColumns, rows: viewRevision.gridRows, partId: partView.partId })
-		.from(viewRevision)
-		.innerJoin(partView, eq(viewRevision.viewId, partView.id))
-		.where(and(eq(viewRevision.id, revisionId), eq(viewRevision.organizationId, orgId)));
+	// Both at once: postgres.js pipelines them on the transaction's connection (one round trip).
+	const [[rev], regions] = await Promise.all([
+		tx
+			.select({ columns: viewRevision.gridColumns, rows: viewRevision.gridRows, partId: partView.partId })
+			.from(viewRevision)
+			.innerJoin(partView, eq(viewRevision.viewId, partView.id))
+			.where(and(eq(viewRevision.id, revisionId), eq(viewRevision.organizationId, orgId))),
+		tx.select({ name: region.name, points: region.points }).from(region).where(eq(region.revisionId, revisionId))
+	]);
 	if (!rev) throw notFound('That drawing');
 	if (rev.partId !== partId) {
 		throw new DomainError(422, 'wrong_drawing', 'This drawing shows another part.', [
 			{ path: 'revisionId', message: 'Pin on a drawing of the sample’s part.' }
 		]);
 	}
-	const regions = await tx
-		.select({ name: region.name, points: region.points })
-		.from(region)
-		.where(eq(region.revisionId, revisionId));
 	return {
 		zone: rev.columns && rev.rows ? zoneOf(point, rev.columns, rev.rows).label : null,
 		regions: regionsOf(point, regions)
@@ -281,8 +281,10 @@ function refuseClosed(): never {
  */
 export async function writePin(access: Access, sampleId: string, input: PinInput) {
 	return db().transaction(async (tx) => {
-		const s = await lockSample(tx, access.org.id, sampleId, 'share');
-		const [existing] = await tx.select(pinFields).from(pin).where(eq(pin.id, input.id));
+		const [s, [existing]] = await Promise.all([
+			lockSample(tx, access.org.id, sampleId, 'share'),
+			tx.select(pinFields).from(pin).where(eq(pin.id, input.id))
+		]);
 		if (existing) {
 			if (existing.sampleId !== sampleId) throw conflict('This pin id belongs to another sample.');
 			return { pin: existing, created: false };
@@ -294,8 +296,10 @@ export async function writePin(access: Access, sampleId: string, input: PinInput
 				{ path: 'unitIndex', message: `Pick a unit from 1 to ${s.unitCount}.` }
 			]);
 		}
-		await usableType(tx, access.org.id, s.partId, input.defectTypeId);
-		const place = await placeOn(tx, access.org.id, s.partId, input.revisionId, [input.x, input.y]);
+		const [, place] = await Promise.all([
+			usableType(tx, access.org.id, s.partId, input.defectTypeId),
+			placeOn(tx, access.org.id, s.partId, input.revisionId, [input.x, input.y])
+		]);
 		const { reason: _, ...fields } = input;
 		const [row] = await tx
 			.insert(pin)

@@ -1,4 +1,5 @@
 /** Members, roles and invitations of one organisation. Every query is scoped by org id. */
+import { forgetSessions } from './session-memo';
 import { and, asc, desc, eq, gt, ne, sql } from 'drizzle-orm';
 import type { Role } from '$lib/roles';
 import { auth } from './auth';
@@ -91,6 +92,7 @@ export async function changeRole(access: Access, memberId: string, role: Role) {
 			after: { role }
 		});
 	});
+	forgetSessions();
 }
 
 export async function removeMember(access: Access, memberId: string) {
@@ -104,6 +106,7 @@ export async function removeMember(access: Access, memberId: string) {
 			after: null
 		});
 	});
+	forgetSessions();
 }
 
 export async function invite(access: Access, caller: Caller, input: { email: string; role: Role }) {
@@ -177,6 +180,7 @@ export async function acceptInvitation(caller: Caller, userEmail: string, invita
 				headers: caller.headers
 			});
 		}
+		forgetSessions();
 		return preview;
 	} catch (e) {
 		return fromAuthError(e);
