@@ -78,7 +78,7 @@ export function recommendLaney(
 	const { test, sigmaZ } = evidence;
 	if (test && test.df > 0 && test.p < alpha) {
 		reasons.push(
-			`The counts vary more than a Poisson process would (dispersion test p = ${test.p.toPrecision(2)}), ` +
+			`The counts vary more than a Poisson process would (dispersion test ${test.p < 0.001 ? 'p < 0.001' : `p = ${test.p.toPrecision(2)}`}), ` +
 				'so the u-chart limits are too narrow and would raise false alarms.'
 		);
 	}
