@@ -6,8 +6,10 @@ import { densityQuerySchema } from '../../src/lib/schemas/density';
 import { db } from '../../src/lib/server/db';
 import { pin, sample } from '../../src/lib/server/db/schema';
 import { createDefectType } from '../../src/lib/server/defects';
-import { binView, densityOf } from '../../src/lib/server/density';
-import { addRevision, createView } from '../../src/lib/server/drawings';
+import { binView, densityOf, zonesOf } from '../../src/lib/server/density';
+import { closeSample, startSample, writePin } from '../../src/lib/server/samples';
+import { startSampleSchema } from '../../src/lib/schemas/sample';
+import { addRegion, addRevision, createView, setGrid } from '../../src/lib/server/drawings';
 import { createOrganisation } from '../../src/lib/server/orgs';
 import { createPart } from '../../src/lib/server/parts';
 import { good } from '../fixtures/images';
@@ -94,6 +96,51 @@ describe('density binning in SQL', () => {
 
 		const stranger = await plant('bins-other');
 		await expect(binView(stranger.access.org.id, p.view.id, q({}))).rejects.toMatchObject({ status: 404 });
+	});
+
+	it('ranks grid zones and regions against uniform-by-area, with chi-square and Clark–Evans', async () => {
+		const p = await plant('zones');
+		await setGrid(p.access, p.rev.id, { columns: 2, rows: 1 });
+		const leftHalf: [number, number][] = [
+			[0, 0],
+			[0.5, 0],
+			[0.5, 1],
+			[0, 1]
+		];
+		await addRegion(p.access, p.rev.id, { name: 'left', points: leftHalf });
+		const s = await startSample(p.access, startSampleSchema.parse({ partId: p.part.id, size: 2 }));
+		const spots: [number, number, number][] = [
+			[1, 0.1, 0.2],
+			[1, 0.2, 0.3],
+			[2, 0.3, 0.6],
+			[2, 0.15, 0.8],
+			[2, 0.8, 0.5]
+		];
+		for (const [unitIndex, x, y] of spots) {
+			await writePin(p.access, s.id, {
+				id: randomUUID(),
+				unitIndex,
+				revisionId: p.rev.id,
+				defectTypeId: p.a.id,
+				x,
+				y,
+				note: ''
+			});
+		}
+		await closeSample(p.access, s.id);
+		const r = await zonesOf(p.access.org.id, p.view.id, q({}));
+		expect([r.units, r.grid]).toEqual([2, { columns: 2, rows: 1 }]);
+		// Hand-checked: O = 4, 1 against E = 2.5, 2.5 → X² = 2 · 1.5² / 2.5 = 1.8 on 1 df.
+		expect(r.zones?.zones.map((z) => [z.id, z.count, z.expected])).toEqual([
+			['A1', 4, 2.5],
+			['A2', 1, 2.5]
+		]);
+		expect(r.zones?.test.statistic).toBeCloseTo(1.8, 12);
+		expect(r.zones?.test.df).toBe(1);
+		expect(r.zones?.zones[0]?.rate).toBe(2); // 4 defects in 2 units
+		expect(r.regions?.zones.map((z) => [z.id, z.count])).toEqual([['left', 4]]);
+		expect(r.clarkEvans?.n).toBe(5);
+		expect(r.caveat).toMatch(/do not carry the same risk/);
 	});
 
 	it('answers a million pins with the grid only, never the points', async () => {

@@ -6,9 +6,12 @@
  */
 import { and, desc, eq, sql, type SQL } from 'drizzle-orm';
 import type { DensityQuery } from '$lib/schemas/density';
+import { clarkEvans } from '$lib/spatial/cluster';
 import { gridShape, perUnits, scottBandwidthFromGrid, smoothGrid } from '$lib/spatial/density';
+import { rankZones, spreadVerdict, UNIFORM_RISK_CAVEAT } from '$lib/spatial/ranking';
+import { zoneOf } from '$lib/spatial/zones';
 import { db } from './db';
-import { partView, viewRevision } from './db/schema';
+import { partView, region, viewRevision } from './db/schema';
 import { notFound } from './errors';
 
 export interface BinnedView {
@@ -33,25 +36,34 @@ const and_ = (parts: (SQL | false | '' | undefined)[]) =>
 		sql` AND `
 	);
 
-export async function binView(orgId: string, viewId: string, q: DensityQuery): Promise<BinnedView> {
+/** The view and its newest revision (its image gives the aspect; its grid and regions the zones). */
+async function viewOf(orgId: string, viewId: string) {
 	const [view] = await db()
 		.select({ id: partView.id, partId: partView.partId })
 		.from(partView)
 		.where(and(eq(partView.id, viewId), eq(partView.organizationId, orgId)));
 	if (!view) throw notFound('That view');
 	const [rev] = await db()
-		.select({ id: viewRevision.id, width: viewRevision.width, height: viewRevision.height })
+		.select({
+			id: viewRevision.id,
+			width: viewRevision.width,
+			height: viewRevision.height,
+			gridColumns: viewRevision.gridColumns,
+			gridRows: viewRevision.gridRows
+		})
 		.from(viewRevision)
 		.where(eq(viewRevision.viewId, viewId))
 		.orderBy(desc(viewRevision.revision))
 		.limit(1);
 	if (!rev) throw notFound('A drawing of that view');
-	const aspect = rev.width / rev.height;
-	const { columns, rows } = gridShape(aspect, q.cells);
+	return { view, rev, aspect: rev.width / rev.height };
+}
 
-	const sampleWhere = and_([
+/** Closed samples of the part under the filters (alias s), and the pins of the view among them (alias p). */
+function filtersSql(orgId: string, partId: string, viewId: string, q: DensityQuery) {
+	const samples = and_([
 		sql`s.organization_id = ${orgId}`,
-		sql`s.part_id = ${view.partId}`,
+		sql`s.part_id = ${partId}`,
 		sql`s.state = 'closed'`,
 		q.tool && sql`s.tool_id = ${q.tool}`,
 		q.cavity !== undefined && sql`s.cavity = ${q.cavity}`,
@@ -61,26 +73,36 @@ export async function binView(orgId: string, viewId: string, q: DensityQuery): P
 		q.to && sql`s.taken_at < ${new Date(q.to).toISOString()}`
 	]);
 	const types = q.type ?? [];
+	const pins = and_([
+		samples,
+		sql`p.deleted_at IS NULL`,
+		sql`p.revision_id IN (SELECT id FROM view_revision WHERE view_id = ${viewId})`,
+		types.length > 0 &&
+			sql`p.defect_type_id IN (${sql.join(
+				types.map((t) => sql`${t}::uuid`),
+				sql`, `
+			)})`
+	]);
+	return { samples, pins };
+}
+
+async function inspected(samples: SQL) {
+	const [row] = await db().execute<{ units: number; samples: number }>(sql`
+		SELECT coalesce(sum(s.size), 0)::float8 AS units, count(*)::int AS samples FROM sample s WHERE ${samples}`);
+	return { units: Number(row?.units ?? 0), samples: Number(row?.samples ?? 0) };
+}
+
+export async function binView(orgId: string, viewId: string, q: DensityQuery): Promise<BinnedView> {
+	const { view, rev, aspect } = await viewOf(orgId, viewId);
+	const { columns, rows } = gridShape(aspect, q.cells);
+	const where = filtersSql(orgId, view.partId, viewId, q);
 	// Same edge rule as zoneOf: a point on an inner edge goes right/below; x = 1 stays in the last cell.
 	const cells = await db().execute<{ cell: number; n: number }>(sql`
 		SELECT (LEAST(${rows - 1}, floor(p.y * ${rows})::int) * ${columns} + LEAST(${columns - 1}, floor(p.x * ${columns})::int)) AS cell,
 			count(*)::int AS n
-		FROM pin p
-		JOIN sample s ON s.id = p.sample_id
-		JOIN view_revision r ON r.id = p.revision_id
-		WHERE ${sampleWhere} AND p.deleted_at IS NULL AND r.view_id = ${viewId}
-			${
-				types.length
-					? sql`AND p.defect_type_id IN (${sql.join(
-							types.map((t) => sql`${t}::uuid`),
-							sql`, `
-						)})`
-					: sql``
-			}
+		FROM pin p JOIN sample s ON s.id = p.sample_id
+		WHERE ${where.pins}
 		GROUP BY 1`);
-	const [inspected] = await db().execute<{ units: number; samples: number }>(sql`
-		SELECT coalesce(sum(s.size), 0)::float8 AS units, count(*)::int AS samples FROM sample s WHERE ${sampleWhere}`);
-
 	const counts = new Array<number>(columns * rows).fill(0);
 	let pins = 0;
 	for (const c of cells) {
@@ -96,8 +118,70 @@ export async function binView(orgId: string, viewId: string, q: DensityQuery): P
 		rows,
 		counts,
 		pins,
-		units: Number(inspected?.units ?? 0),
-		samples: Number(inspected?.samples ?? 0)
+		...(await inspected(where.samples))
+	};
+}
+
+/** At most this many pins go into the nearest-neighbour ratio (the newest ones). */
+export const CLUSTER_POINTS = 100_000;
+
+/**
+ * Zone ranking of a view: per grid zone (the newest revision's grid) and per region, against
+ * "defects fall uniformly by area", with the chi-square test, and the Clark–Evans ratio of the
+ * pins (coordinates scaled to the drawing's aspect, so distances are true on the drawing).
+ */
+export async function zonesOf(orgId: string, viewId: string, q: DensityQuery) {
+	const { view, rev, aspect } = await viewOf(orgId, viewId);
+	const where = filtersSql(orgId, view.partId, viewId, q);
+	const [{ units, samples }, byZone, byRegion, regionRows, points] = await Promise.all([
+		inspected(where.samples),
+		db().execute<{ zone: string; n: number }>(sql`
+			SELECT p.zone, count(*)::int AS n FROM pin p JOIN sample s ON s.id = p.sample_id
+			WHERE ${where.pins} AND p.zone IS NOT NULL GROUP BY p.zone`),
+		db().execute<{ region: string; n: number }>(sql`
+			SELECT r.name AS region, count(*)::int AS n FROM pin p JOIN sample s ON s.id = p.sample_id
+			CROSS JOIN LATERAL unnest(p.regions) AS r(name)
+			WHERE ${where.pins} GROUP BY r.name`),
+		db().select({ name: region.name, area: region.area }).from(region).where(eq(region.revisionId, rev.id)),
+		db().execute<{ x: number; y: number }>(sql`
+			SELECT p.x, p.y FROM pin p JOIN sample s ON s.id = p.sample_id
+			WHERE ${where.pins} ORDER BY p.created_at DESC LIMIT ${CLUSTER_POINTS}`)
+	]);
+	const counts = (rows: { key: string; n: number }[]) => Object.fromEntries(rows.map((r) => [r.key, Number(r.n)]));
+	const grid =
+		rev.gridColumns && rev.gridRows
+			? Array.from({ length: rev.gridColumns * rev.gridRows }, (_, i) => ({
+					id: zoneOf(
+						[
+							((i % rev.gridColumns!) + 0.5) / rev.gridColumns!,
+							(Math.floor(i / rev.gridColumns!) + 0.5) / rev.gridRows!
+						],
+						rev.gridColumns!,
+						rev.gridRows!
+					).label,
+					area: 1 / (rev.gridColumns! * rev.gridRows!)
+				}))
+			: [];
+	const rank = (zones: { id: string; area: number }[], c: Record<string, number>) => {
+		if (!zones.length || units <= 0) return null;
+		const ranking = rankZones(zones, c, units);
+		return { ...ranking, verdict: spreadVerdict(ranking) };
+	};
+	const scaled = points.map((p) => [Number(p.x) * aspect, Number(p.y)] as [number, number]);
+	return {
+		viewId,
+		revisionId: rev.id,
+		units,
+		samples,
+		grid: rev.gridColumns && rev.gridRows ? { columns: rev.gridColumns, rows: rev.gridRows } : null,
+		zones: rank(grid, counts(byZone.map((r) => ({ key: r.zone, n: r.n })))),
+		regions: rank(
+			regionRows.filter((r) => r.area > 0).map((r) => ({ id: r.name, area: r.area })),
+			counts(byRegion.map((r) => ({ key: r.region, n: r.n })))
+		),
+		clarkEvans: clarkEvans(scaled, aspect),
+		clusterPoints: scaled.length,
+		caveat: UNIFORM_RISK_CAVEAT
 	};
 }
 

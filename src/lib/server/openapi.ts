@@ -6,6 +6,7 @@
 import { z } from 'zod';
 import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObject } from 'zod-openapi';
 import { chartQueryFields, limitSetPatchSchema, limitSetSchema } from '$lib/schemas/chart';
+import { densityQuerySchema } from '$lib/schemas/density';
 import { defectTypeCreateSchema, defectTypePatchSchema } from '$lib/schemas/defect';
 import { gridSchema, regionSchema } from '$lib/schemas/drawing';
 import { historyUploadQuerySchema } from '$lib/schemas/history';
@@ -239,6 +240,16 @@ const paths: ZodOpenApiPathsObject = {
 			},
 			{ status: '201' }
 		)
+	},
+	'/views/{viewId}/density.json': {
+		get: op('Density map of a view: pins binned in SQL, smoothed, per 100 units inspected', ['Hot spots'], {
+			requestParams: { path: id('viewId'), query: densityQuerySchema }
+		})
+	},
+	'/views/{viewId}/zones.json': {
+		get: op('Zone ranking of a view with the chi-square test and the Clark–Evans ratio', ['Hot spots'], {
+			requestParams: { path: id('viewId'), query: densityQuerySchema }
+		})
 	},
 	'/signals': {
 		get: op('Signals (run-rule violations on frozen limits)', ['Signals'], {
