@@ -7,6 +7,7 @@ import { z } from 'zod';
 import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObject } from 'zod-openapi';
 import { chartQueryFields, limitSetPatchSchema, limitSetSchema } from '$lib/schemas/chart';
 import { densityQuerySchema } from '$lib/schemas/density';
+import { repairActionSchema, repairListSchema, repairSchema } from '$lib/schemas/repair';
 import { defectTypeCreateSchema, defectTypePatchSchema } from '$lib/schemas/defect';
 import { gridSchema, regionSchema } from '$lib/schemas/drawing';
 import { historyUploadQuerySchema } from '$lib/schemas/history';
@@ -249,6 +250,24 @@ const paths: ZodOpenApiPathsObject = {
 	'/views/{viewId}/zones.json': {
 		get: op('Zone ranking of a view with the chi-square test and the Clark–Evans ratio', ['Hot spots'], {
 			requestParams: { path: id('viewId'), query: densityQuerySchema }
+		})
+	},
+	'/repairs': {
+		get: op('Repair requests (open by default; mine=1 for your queue)', ['Repairs'], {
+			requestParams: { query: repairListSchema }
+		}),
+		post: op('Request a repair with its evidence', ['Repairs'], { requestBody: json(repairSchema) }, { status: '201' })
+	},
+	'/repairs/{repairId}': {
+		get: op('One repair', ['Repairs'], { requestParams: { path: id('repairId') } }),
+		post: op('Accept, mark done, verified or not verified', ['Repairs'], {
+			requestParams: { path: id('repairId') },
+			requestBody: json(repairActionSchema)
+		})
+	},
+	'/repairs/{repairId}/verification': {
+		get: op('Before against after the repair date: exact test for two Poisson rates', ['Repairs'], {
+			requestParams: { path: id('repairId') }
 		})
 	},
 	'/signals': {

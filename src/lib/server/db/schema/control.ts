@@ -152,3 +152,45 @@ export const signal = pgTable(
 		index().on(t.partId, t.createdAt)
 	]
 );
+
+/**
+ * A request to repair a tool (and cavity) where defects cluster, with the evidence frozen when it
+ * was made. requested → accepted → done (repair date, work done) → verified or not verified.
+ */
+export const repair = pgTable(
+	'repair',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		organizationId: organizationId(),
+		partId: uuid()
+			.notNull()
+			.references(() => part.id),
+		toolId: uuid()
+			.notNull()
+			.references(() => tool.id),
+		cavity: integer(),
+		/** The view the zones and regions are on. */
+		viewId: uuid().notNull(),
+		zones: text().array().notNull().default([]),
+		regions: text().array().notNull().default([]),
+		defectTypeIds: uuid().array().notNull().default([]),
+		note: text().notNull().default(''),
+		state: text({ enum: ['requested', 'accepted', 'done', 'verified', 'not_verified'] })
+			.notNull()
+			.default('requested'),
+		assigneeId: text().references(() => user.id, { onDelete: 'set null' }),
+		/** Counts and rates when the request was made. */
+		evidence: jsonb().$type<Record<string, unknown>>().notNull(),
+		evidenceImageKey: text(),
+		repairDate: timestamp({ withTimezone: true }),
+		workDone: text().notNull().default(''),
+		verification: jsonb().$type<Record<string, unknown>>(),
+		requestedBy: text().references(() => user.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		acceptedAt: timestamp({ withTimezone: true }),
+		doneAt: timestamp({ withTimezone: true }),
+		verifiedBy: text().references(() => user.id, { onDelete: 'set null' }),
+		verifiedAt: timestamp({ withTimezone: true })
+	},
+	(t) => [index().on(t.organizationId, t.state), index().on(t.toolId)]
+);
