@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { count, eq } from 'drizzle-orm';
 import { db, migrateDb } from '../../src/lib/server/db';
-import { member, organization, part, partView, tool, viewRevision } from '../../src/lib/server/db/schema';
+import { member, organization, part, partView, repair, tool, viewRevision } from '../../src/lib/server/db/schema';
+import { verification } from '../../src/lib/server/repairs';
 import { getRevision, revisionImage } from '../../src/lib/server/drawings';
 import { listDefectTypes } from '../../src/lib/server/defects';
 import { getPlan } from '../../src/lib/server/plans';
@@ -42,6 +43,14 @@ describe('start-up steps', () => {
 		// The worn gate insert of cavity 3 puts its later samples above the frozen UCL.
 		expect(signals.filter((s) => s.rule === 'beyond-limit').length).toBeGreaterThanOrEqual(2);
 		expect(signals.filter((s) => s.state === 'explained')).toHaveLength(1);
+
+		// The repair of cavity 3's gate side waits to be marked done; had it been done 14 days ago (as it
+		// was, in the story), the rate in that region would show as dropped.
+		const [demoRepair] = await db().select().from(repair).where(eq(repair.organizationId, org!.id));
+		expect(demoRepair).toMatchObject({ state: 'accepted', cavity: 3, regions: ['Gate side'] });
+		expect(Number(demoRepair!.evidence.count)).toBeGreaterThan(10);
+		const check = await verification(org!.id, { ...demoRepair!, repairDate: new Date(Date.now() - 14 * 864e5) });
+		expect(check).toMatchObject({ verdict: 'dropped' });
 
 		// Its two drawings are in object storage, rasterised from the SVG, each with a thumbnail.
 		const views = await db()

@@ -1,8 +1,9 @@
 /**
  * The demo's past, invented: thirty paper tally sheets from before Fernwick used Stipple (imported
  * as count-only history, from which the u-chart limits were frozen), then eight weeks of Bench
- * samples with their pins. Three weeks ago the gate insert of cavity 3 began to wear: short shots
- * and flow marks near the gate rise in that cavity's samples, and the chart signals. Seeded with
+ * samples with their pins. Five weeks ago the gate insert of cavity 3 began to wear: short shots
+ * and flow marks near the gate rose in that cavity's samples and the chart signalled; two weeks ago
+ * the toolroom repaired it, and the spot fades. Sink marks at the bosses stay as they were. Seeded with
  * fixed random seeds, so every demo shows the same story.
  */
 import { randomUUID } from 'node:crypto';
@@ -136,7 +137,8 @@ export async function seedDemoHistory(tx: Tx, d: DemoContext, now = new Date()) 
 	for (let day = 0; day < 56; day++) {
 		const id = randomUUID();
 		const cavity = (day % 4) + 1;
-		const worn = cavity === 3 && day >= 35;
+		// Worn from day 20 (36 days ago) until the toolroom repaired it on day 42 (14 days ago).
+		const worn = cavity === 3 && day >= 20 && day < 42;
 		const takenAt = new Date(today - (56 - day) * DAY + (6 + (day % 3) * 8) * 3600 * 1000);
 		samples.push({
 			id,

@@ -32,6 +32,9 @@ import { storeRevision } from './drawings';
 import { processImage } from './images';
 import { seedDemoHistory } from './demo-history';
 import { evaluateSignals } from './signals';
+import { actOnRepair, createRepair } from './repairs';
+import { repairSchema } from '$lib/schemas/repair';
+import type { Access } from './access';
 
 export const DEMO_ORG = { name: 'Fernwick Moulding Works', slug: 'fernwick' };
 
@@ -129,6 +132,45 @@ const DEMO_REGIONS: { name: string; points: Point[] }[] = [
 	{ name: 'Louvre field', points: [px(310, 260), px(1090, 260), px(1090, 660), px(310, 660)] },
 	{ name: 'Boss 1', points: octagon(270, 220, 48) }
 ];
+
+/**
+ * The demo's repair request: eighteen days ago the engineer asked the toolroom to look at the gate
+ * side of cavity 3 (short shots and flow marks); the toolmaker accepted it. It waits to be marked
+ * done (the work happened fourteen days ago), after which Stipple verifies it.
+ */
+async function seedDemoRepair(d: {
+	orgId: string;
+	partId: string;
+	toolId: string;
+	frontViewId: string;
+	engineerId: string;
+	toolmakerId: string;
+	shortShot: string;
+	flowMarks: string;
+}) {
+	const org = { id: d.orgId, name: DEMO_ORG.name, slug: DEMO_ORG.slug };
+	const who = (id: string, role: Role): Access => {
+		const u = DEMO_USERS.find((x) => x.role === role)!;
+		return { user: { id, name: u.name, email: u.email }, org, role };
+	};
+	const day = 24 * 3600 * 1000;
+	const requested = await createRepair(
+		who(d.engineerId, 'engineer'),
+		repairSchema.parse({
+			partId: d.partId,
+			toolId: d.toolId,
+			cavity: 3,
+			viewId: d.frontViewId,
+			regions: ['Gate side'],
+			defectTypeIds: [d.shortShot, d.flowMarks],
+			note: 'Short shots and flow marks along the gate side of cavity 3 since about five weeks ago; the gate insert looks worn.',
+			assigneeId: d.toolmakerId,
+			from: new Date(Date.now() - 36 * day).toISOString(),
+			to: new Date(Date.now() - 18 * day).toISOString()
+		})
+	);
+	await actOnRepair(who(d.toolmakerId, 'toolmaker'), requested.id, { action: 'accept' });
+}
 
 /** Seeds the demo unless this database has had it before. Returns whether it seeded now. */
 export async function seedDemoOnce(): Promise<boolean> {
@@ -237,9 +279,19 @@ export async function seedDemoOnce(): Promise<boolean> {
 			regions: DEMO_REGIONS,
 			types
 		});
-		return { orgId, partId: grille.id, engineerId: userIds.engineer! };
+		return {
+			orgId,
+			partId: grille.id,
+			toolId: mould.id,
+			frontViewId: views[0]!.id,
+			engineerId: userIds.engineer!,
+			toolmakerId: userIds.toolmaker!,
+			shortShot: types.find((t) => t.code === 'SS')!.id,
+			flowMarks: types.find((t) => t.code === 'FM')!.id
+		};
 	});
 	if (!seeded) return false;
+	await seedDemoRepair(seeded);
 	// The signals of the demo's history, as the background job would have raised them; the first
 	// one already explained by the engineer.
 	const raised = await evaluateSignals(seeded.orgId, seeded.partId);
