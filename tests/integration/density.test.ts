@@ -6,7 +6,9 @@ import { densityQuerySchema } from '../../src/lib/schemas/density';
 import { db } from '../../src/lib/server/db';
 import { pin, sample } from '../../src/lib/server/db/schema';
 import { createDefectType } from '../../src/lib/server/defects';
-import { binView, densityOf, zonesOf } from '../../src/lib/server/density';
+import { binView, densityOf, densityPng, zonesCsv, zonesOf } from '../../src/lib/server/density';
+import Papa from 'papaparse';
+import sharp from 'sharp';
 import { closeSample, startSample, writePin } from '../../src/lib/server/samples';
 import { startSampleSchema } from '../../src/lib/schemas/sample';
 import { addRegion, addRevision, createView, setGrid } from '../../src/lib/server/drawings';
@@ -141,6 +143,17 @@ describe('density binning in SQL', () => {
 		expect(r.regions?.zones.map((z) => [z.id, z.count])).toEqual([['left', 4]]);
 		expect(r.clarkEvans?.n).toBe(5);
 		expect(r.caveat).toMatch(/do not carry the same risk/);
+
+		// Exports: the table as CSV (parsed back), the map as a PNG the size of the drawing.
+		const csv = Papa.parse<string[]>(await zonesCsv(p.access.org.id, p.view.id, q({})), { skipEmptyLines: true }).data;
+		expect(csv[0]).toEqual(['kind', 'zone', 'pins', 'units', 'defects_per_unit', 'expected', 'residual', 'share']);
+		expect(csv.slice(1).map((row) => [row[0], row[1], row[2]])).toEqual([
+			['grid', 'A1', '4'],
+			['grid', 'A2', '1'],
+			['region', 'left', '4']
+		]);
+		const png = await sharp(await densityPng(p.access.org.id, p.view.id, q({}))).metadata();
+		expect([png.format, png.width, png.height]).toEqual(['png', 500, 400]);
 	});
 
 	it('answers a million pins with the grid only, never the points', async () => {

@@ -5,6 +5,10 @@
  * statistics are pure (src/lib/spatial).
  */
 import { and, desc, eq, sql, type SQL } from 'drizzle-orm';
+import { rgb } from 'd3-color';
+import { interpolateViridis } from 'd3-scale-chromatic';
+import Papa from 'papaparse';
+import sharp from 'sharp';
 import type { DensityQuery } from '$lib/schemas/density';
 import { clarkEvans } from '$lib/spatial/cluster';
 import { gridShape, perUnits, scottBandwidthFromGrid, smoothGrid } from '$lib/spatial/density';
@@ -13,6 +17,7 @@ import { zoneOf } from '$lib/spatial/zones';
 import { db } from './db';
 import { partView, region, viewRevision } from './db/schema';
 import { notFound } from './errors';
+import { getObjectBytes } from './storage';
 
 export interface BinnedView {
 	viewId: string;
@@ -207,4 +212,45 @@ export async function densityOf(orgId: string, viewId: string, q: DensityQuery) 
 		density: Array.from(per100, round),
 		max: round(Math.max(0, ...per100))
 	};
+}
+
+/** The density map over the drawing as a PNG (viridis, up to 60 % opaque where defects are densest). */
+export async function densityPng(orgId: string, viewId: string, q: DensityQuery): Promise<Buffer> {
+	const map = await densityOf(orgId, viewId, q);
+	const [rev] = await db()
+		.select({ displayKey: viewRevision.displayKey, width: viewRevision.width, height: viewRevision.height })
+		.from(viewRevision)
+		.where(eq(viewRevision.id, map.revisionId));
+	if (!rev) throw notFound('A drawing of that view');
+	const rgba = Buffer.alloc(map.columns * map.rows * 4);
+	map.density.forEach((v, i) => {
+		const share = map.max > 0 ? v / map.max : 0;
+		const c = rgb(interpolateViridis(share));
+		rgba.set([c.r, c.g, c.b, Math.round(153 * Math.min(1, share * 1.5))], i * 4);
+	});
+	const overlay = await sharp(rgba, { raw: { width: map.columns, height: map.rows, channels: 4 } })
+		.resize(rev.width, rev.height, { kernel: 'cubic', fit: 'fill' })
+		.png()
+		.toBuffer();
+	return sharp(await getObjectBytes(rev.displayKey))
+		.composite([{ input: overlay }])
+		.png()
+		.toBuffer();
+}
+
+/** The zone ranking as CSV rows (grid zones, then regions), spreadsheet-friendly. */
+export async function zonesCsv(orgId: string, viewId: string, q: DensityQuery): Promise<string> {
+	const r = await zonesOf(orgId, viewId, q);
+	const rows = [
+		['kind', 'zone', 'pins', 'units', 'defects_per_unit', 'expected', 'residual', 'share'],
+		...(
+			[
+				['grid', r.zones],
+				['region', r.regions]
+			] as const
+		).flatMap(([kind, ranking]) =>
+			(ranking?.zones ?? []).map((z) => [kind, z.id, z.count, r.units, z.rate, z.expected, z.residual, z.share])
+		)
+	];
+	return Papa.unparse(rows.map((row) => row.map((v) => (typeof v === 'number' ? Number(v.toPrecision(8)) : v))));
 }

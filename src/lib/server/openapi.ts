@@ -247,6 +247,22 @@ const paths: ZodOpenApiPathsObject = {
 			requestParams: { path: id('viewId'), query: densityQuerySchema }
 		})
 	},
+	'/views/{viewId}/density.png': {
+		get: {
+			summary: 'The density map over the drawing as a PNG',
+			tags: ['Hot spots'],
+			requestParams: { path: id('viewId'), query: densityQuerySchema },
+			responses: { '200': { description: 'PNG', content: { 'image/png': {} } }, ...errors }
+		}
+	},
+	'/views/{viewId}/zones.csv': {
+		get: {
+			summary: 'The zone ranking as CSV (UTF-8 with BOM)',
+			tags: ['Hot spots'],
+			requestParams: { path: id('viewId'), query: densityQuerySchema },
+			responses: { '200': { description: 'CSV', content: { 'text/csv': {} } }, ...errors }
+		}
+	},
 	'/views/{viewId}/zones.json': {
 		get: op('Zone ranking of a view with the chi-square test and the Clark–Evans ratio', ['Hot spots'], {
 			requestParams: { path: id('viewId'), query: densityQuerySchema }

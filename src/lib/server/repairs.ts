@@ -5,8 +5,6 @@
  * before and after the repair date with the exact conditional test for two Poisson rates.
  */
 import { and, desc, eq, inArray, sql } from 'drizzle-orm';
-import sharp from 'sharp';
-import { interpolateViridis } from 'd3-scale-chromatic';
 import type { z } from 'zod';
 import type { RepairInput, repairActionSchema, repairListSchema } from '$lib/schemas/repair';
 import { densityQuerySchema } from '$lib/schemas/density';
@@ -15,8 +13,8 @@ import type { Access } from './access';
 import { audit } from './audit';
 import { publicOrigin } from './config';
 import { db } from './db';
-import { member, part, partView, repair, tool, toolPart, user, viewRevision } from './db/schema';
-import { densityOf } from './density';
+import { member, part, partView, repair, tool, toolPart, user } from './db/schema';
+import { densityPng } from './density';
 import { DomainError, forbidden, notFound } from './errors';
 import { sendMail } from './mail';
 import { getObjectBytes, putObject } from './storage';
@@ -62,49 +60,6 @@ export async function rateIn(s: Scope, from: Date, to: Date) {
 	return { count: Number(row?.count ?? 0), units: Number(row?.units ?? 0), samples: Number(row?.samples ?? 0) };
 }
 
-/** The density map of the view under the drawing, as a PNG: viridis at 60 %, for the evidence. */
-async function evidenceImage(
-	orgId: string,
-	viewId: string,
-	toolId: string,
-	cavity: number | null,
-	from: Date,
-	to: Date
-) {
-	const map = await densityOf(
-		orgId,
-		viewId,
-		densityQuerySchema.parse({
-			tool: toolId,
-			cavity: cavity ?? undefined,
-			from: from.toISOString(),
-			to: to.toISOString()
-		})
-	);
-	const [rev] = await db()
-		.select({ displayKey: viewRevision.displayKey, width: viewRevision.width, height: viewRevision.height })
-		.from(viewRevision)
-		.where(eq(viewRevision.id, map.revisionId));
-	if (!rev) return null;
-	const rgba = Buffer.alloc(map.columns * map.rows * 4);
-	map.density.forEach((v, i) => {
-		const share = map.max > 0 ? v / map.max : 0;
-		const c = /rgb\((\d+), (\d+), (\d+)\)/.exec(interpolateViridis(share));
-		rgba.set(
-			[Number(c?.[1] ?? 0), Number(c?.[2] ?? 0), Number(c?.[3] ?? 0), Math.round(153 * Math.min(1, share * 1.5))],
-			i * 4
-		);
-	});
-	const overlay = await sharp(rgba, { raw: { width: map.columns, height: map.rows, channels: 4 } })
-		.resize(rev.width, rev.height, { kernel: 'cubic', fit: 'fill' })
-		.png()
-		.toBuffer();
-	return sharp(await getObjectBytes(rev.displayKey))
-		.composite([{ input: overlay }])
-		.png()
-		.toBuffer();
-}
-
 export async function createRepair(access: Access, input: RepairInput) {
 	if (!mayChange(access)) throw forbidden('Engineers and toolmakers request repairs.');
 	const [t] = await db()
@@ -129,7 +84,17 @@ export async function createRepair(access: Access, input: RepairInput) {
 	const from = input.from ? new Date(input.from) : new Date(to.getTime() - 30 * DAY);
 	const scope = { orgId: access.org.id, ...input };
 	const now = await rateIn(scope, from, to);
-	const image = await evidenceImage(access.org.id, input.viewId, input.toolId, input.cavity, from, to);
+	const image = await densityPng(
+		access.org.id,
+		input.viewId,
+		densityQuerySchema.parse({
+			tool: input.toolId,
+			cavity: input.cavity ?? undefined,
+			type: input.defectTypeIds.length ? input.defectTypeIds : undefined,
+			from: from.toISOString(),
+			to: to.toISOString()
+		})
+	);
 	const id = crypto.randomUUID();
 	const imageKey = image ? `orgs/${access.org.id}/repairs/${id}/evidence.png` : null;
 	if (image && imageKey) await putObject(imageKey, image, 'image/png');
