@@ -1,7 +1,89 @@
+import { densityQueryOf, densityQuerySchema, type DensityQuery } from '$lib/schemas/density';
 import { requireRole } from '$lib/server/access';
+import { listTools } from '$lib/server/catalogue';
+import { typesForPart } from '$lib/server/defects';
+import { densityOf, zonesOf } from '$lib/server/density';
+import { listViews } from '$lib/server/drawings';
+import { trendChoices, trendParts } from '$lib/server/pareto';
+import { listMembers } from '$lib/server/team';
 import type { PageServerLoad } from './$types';
 
-export const load = ((event) => {
-	requireRole(event, 'engineer', 'toolmaker', 'viewer');
-	return {};
+/** Period B shares every filter of A but its own from / before. */
+const periodB = (q: DensityQuery, from: string | undefined, to: string | undefined) => {
+	const b = densityQuerySchema.safeParse({ ...q, from, to });
+	return b.success ? b.data : null;
+};
+
+export const load = (async (event) => {
+	const { org } = requireRole(event, 'engineer', 'toolmaker', 'viewer');
+	const parts = await trendParts(org.id);
+	const params = event.url.searchParams;
+	const part = parts.find((p) => p.id === params.get('part')) ?? parts[0] ?? null;
+	if (!part) return { parts, part: null };
+
+	const [allViews, types, tools, choices, members] = await Promise.all([
+		listViews(org.id, part.id),
+		typesForPart(org.id, part.id),
+		listTools(org.id),
+		trendChoices(org.id, part.id),
+		listMembers(org.id)
+	]);
+	const views = allViews
+		.filter((v) => v.revisions.length > 0)
+		.map((v) => ({ id: v.id, name: v.name, revisionId: v.revisions[0]!.id }));
+	const view = views.find((v) => v.id === params.get('view')) ?? views[0] ?? null;
+
+	const parsed = densityQuerySchema.safeParse(densityQueryOf(params));
+	const query: DensityQuery = parsed.success ? parsed.data : densityQuerySchema.parse({});
+	const notUnderstood = parsed.success ? [] : parsed.error.issues.map((i) => i.message);
+	const bFrom = params.get('bfrom') || undefined;
+	const bTo = params.get('bto') || undefined;
+	const queryB = bFrom || bTo ? periodB(query, bFrom, bTo) : null;
+	if ((bFrom || bTo) && !queryB) notUnderstood.push('Period B needs ISO dates, e.g. 2026-11-30.');
+
+	const choicesOut = {
+		types: types.map(({ id, code, name }) => ({ id, code, name })),
+		tools: tools
+			.filter((t) => t.partIds.includes(part.id))
+			.map(({ id, code, name, cavityCount }) => ({ id, code, name, cavityCount })),
+		shifts: choices.shifts,
+		inspectors: members
+			.filter((m) => m.role === 'inspector' || m.role === 'engineer' || m.role === 'admin')
+			.map((m) => ({ id: m.userId, name: m.name }))
+	};
+	const filters = {
+		type: query.type ?? [],
+		tool: query.tool ?? '',
+		cavity: query.cavity === undefined ? '' : String(query.cavity),
+		shift: query.shift ?? '',
+		inspector: query.inspector ?? '',
+		from: query.from ?? '',
+		to: query.to ?? '',
+		bfrom: queryB ? (bFrom ?? '') : '',
+		bto: queryB ? (bTo ?? '') : '',
+		bandwidth: query.bandwidth ?? null
+	};
+	if (!view) return { parts, part, views, view: null, choices: choicesOut, filters, notUnderstood };
+
+	const [a, zones, b] = await Promise.all([
+		densityOf(org.id, view.id, query),
+		zonesOf(org.id, view.id, query),
+		queryB ? densityOf(org.id, view.id, queryB) : null
+	]);
+	const { revisionId: _r, viewId: _v, clusterPoints: _c, ...zoneData } = zones;
+	const filtered =
+		(query.type?.length ?? 0) > 0 ||
+		!!(query.tool || query.cavity || query.shift || query.inspector || query.from || query.to);
+	return {
+		parts,
+		part,
+		views,
+		view,
+		choices: choicesOut,
+		filters,
+		filtered,
+		notUnderstood,
+		density: { a, b },
+		zones: zoneData
+	};
 }) satisfies PageServerLoad;

@@ -1,0 +1,84 @@
+import { expect, test, type Page } from '@playwright/test';
+import { shoot, signIn } from './helpers';
+
+/** Opens Hot spots for the demo part FW-118 and waits for the map to be drawn. */
+async function openFw118(page: Page) {
+	await page.goto('/hotspots');
+	await expect(page.getByRole('heading', { name: 'Hot spots', level: 1 })).toBeVisible();
+	const part = page.getByLabel('Part', { exact: true });
+	const value = await part.locator('option', { hasText: 'FW-118' }).getAttribute('value');
+	if ((await part.inputValue()) !== value) {
+		await part.selectOption(value!);
+		await expect(page).toHaveURL(new RegExp(`part=${value}`));
+	}
+	await expect(page.getByRole('heading', { name: /FW-118 · Front/ })).toBeVisible();
+	await expect(page.locator('canvas').first()).toBeVisible();
+}
+
+test('a toolmaker finds the worn gate of cavity 3 on the Front view', async ({ page }) => {
+	await page.setViewportSize({ width: 1280, height: 900 });
+	await signIn(page, 'toolmaker@example.com');
+	await openFw118(page);
+	await shoot(page, 'hotspots-all');
+
+	await page.getByLabel('Cavity').selectOption('3');
+	await expect(page).toHaveURL(/cavity=3/);
+	await expect(page.getByLabel(/^Legend:/).first()).toContainText('per 100 units');
+
+	// Rows are lettered A–E from the top of the 8 × 5 grid: the gate sits at the bottom.
+	const zones = page.getByRole('tabpanel').getByRole('table');
+	const top = zones.locator('tbody tr').first().locator('td').nth(1);
+	await expect(top).toHaveText(/^[DE]\d$/);
+	const href = await top.getByRole('link').getAttribute('href');
+	expect(href).toMatch(/^\/trends\?part=[^&]+&zone=[DE]\d/);
+	expect(href).toContain('cavity=3');
+	await expect(page.getByTestId('clark-evans')).toContainText(/clustered|random|regular/);
+	await expect(page.getByTestId('clark-evans')).toContainText('Clark–Evans');
+	await expect(page.getByText(/Defects are not spread evenly by area|could have fallen evenly/)).toBeVisible();
+
+	await page.getByRole('button', { name: 'Show all 40 zones' }).click();
+	await expect(zones.locator('tbody tr')).toHaveCount(40);
+	// Sorting by a header.
+	await page.getByRole('button', { name: 'Pins', exact: true }).click();
+	await expect(zones.locator('th[aria-sort="descending"]')).toContainText('Pins');
+	await shoot(page, 'hotspots-cavity-3');
+
+	await page.getByRole('tab', { name: 'Regions' }).click();
+	await expect(page.getByRole('tab', { name: 'Regions' })).toHaveAttribute('aria-selected', 'true');
+	const gate = page.getByRole('tabpanel').getByRole('link', { name: 'Gate side' });
+	await expect(gate).toBeVisible();
+	expect(await gate.getAttribute('href')).toContain('region=Gate+side');
+
+	// The bandwidth slider redraws from the API without reloading the page.
+	const slider = page.getByLabel(/Smoothing \(bandwidth\)/);
+	await slider.fill('0.1');
+	await slider.dispatchEvent('change');
+	await expect(page).toHaveURL(/bandwidth=0.1/);
+	await expect(page.getByRole('button', { name: "Back to Scott's rule" })).toBeVisible();
+
+	// Period compare: A the last three weeks (worn gate), B the weeks before.
+	const day = (offset: number) => new Date(Date.now() + offset * 86_400_000).toISOString().slice(0, 10);
+	await page.getByLabel('Period A from').fill(day(-21));
+	await page.getByLabel('Compare with B from').fill(day(-56));
+	await page.getByLabel('B before').fill(day(-21));
+	await page.getByRole('button', { name: 'Show' }).click();
+	await expect(page).toHaveURL(/bfrom=.*bandwidth=0.1|bandwidth=0.1.*bfrom=/);
+	await expect(page.getByRole('heading', { name: /period A minus period B/ })).toBeVisible();
+	await expect(page.getByLabel(/^Legend: A − B/)).toBeVisible();
+	await expect(page.getByRole('img', { name: /(Difference|density) map/ })).toHaveCount(3);
+	await shoot(page, 'hotspots-compare');
+
+	await page.setViewportSize({ width: 768, height: 1024 });
+	await expect(page.getByRole('tab', { name: 'Grid zones' })).toBeVisible();
+	await shoot(page, 'hotspots-compare-768');
+});
+
+test('a viewer can read the hot spots at tablet width', async ({ page }) => {
+	await page.setViewportSize({ width: 768, height: 1024 });
+	await signIn(page, 'viewer@example.com');
+	await openFw118(page);
+	await expect(page.getByRole('tabpanel').getByRole('table')).toBeVisible();
+	await expect(page.getByTestId('clark-evans')).toBeVisible();
+	await expect(page.getByText(/support, and do not replace/)).toBeVisible();
+	await shoot(page, 'hotspots-viewer-768');
+});
