@@ -71,6 +71,11 @@ test('a toolmaker finds the worn gate of cavity 3 on the Front view', async ({ p
 	await page.setViewportSize({ width: 768, height: 1024 });
 	await expect(page.getByRole('tab', { name: 'Grid zones' })).toBeVisible();
 	await shoot(page, 'hotspots-compare-768');
+
+	// From here a repair request starts with the cavity and the hot zones filled in.
+	await page.getByRole('link', { name: 'Request a repair for these zones' }).click();
+	await expect(page).toHaveURL(/\/repairs\/new\?.*cavity=3/);
+	expect(new URL(page.url()).searchParams.getAll('zone').length).toBeGreaterThan(0);
 });
 
 test('a viewer can read the hot spots at tablet width', async ({ page }) => {
@@ -80,5 +85,6 @@ test('a viewer can read the hot spots at tablet width', async ({ page }) => {
 	await expect(page.getByRole('tabpanel').getByRole('table')).toBeVisible();
 	await expect(page.getByTestId('clark-evans')).toBeVisible();
 	await expect(page.getByText(/support, and do not replace/)).toBeVisible();
+	await expect(page.getByRole('link', { name: 'Request a repair for these zones' })).toHaveCount(0);
 	await shoot(page, 'hotspots-viewer-768');
 });

@@ -15,7 +15,7 @@ const periodB = (q: DensityQuery, from: string | undefined, to: string | undefin
 };
 
 export const load = (async (event) => {
-	const { org } = requireRole(event, 'engineer', 'toolmaker', 'viewer');
+	const { org, role } = requireRole(event, 'engineer', 'toolmaker', 'viewer');
 	const parts = await trendParts(org.id);
 	const params = event.url.searchParams;
 	const part = parts.find((p) => p.id === params.get('part')) ?? parts[0] ?? null;
@@ -84,6 +84,22 @@ export const load = (async (event) => {
 		filtered,
 		notUnderstood,
 		density: { a, b },
-		zones: zoneData
+		zones: zoneData,
+		repairHref: ['engineer', 'toolmaker', 'admin'].includes(role) ? repairLink(part.id, view.id, query, zoneData) : null
 	};
 }) satisfies PageServerLoad;
+
+/** A repair request prefilled with what is on screen: the tool, cavity and types, and the zones well above their share. */
+function repairLink(
+	partId: string,
+	viewId: string,
+	q: DensityQuery,
+	z: { zones: { zones: { id: string; residual: number }[] } | null }
+) {
+	const p = new URLSearchParams({ part: partId, view: viewId });
+	if (q.tool) p.set('tool', q.tool);
+	if (q.cavity) p.set('cavity', String(q.cavity));
+	for (const t of q.type ?? []) p.append('type', t);
+	for (const zone of (z.zones?.zones ?? []).filter((x) => x.residual > 2).slice(0, 5)) p.append('zone', zone.id);
+	return `/repairs/new?${p}`;
+}
