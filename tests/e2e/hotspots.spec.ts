@@ -72,6 +72,17 @@ test('a toolmaker finds the worn gate of cavity 3 on the Front view', async ({ p
 	await expect(page.getByRole('tab', { name: 'Grid zones' })).toBeVisible();
 	await shoot(page, 'hotspots-compare-768');
 
+	// The map and the table download with the filters on screen.
+	const csv = await page.request.get(
+		(await page.getByRole('link', { name: 'Download the zone table (CSV)' }).getAttribute('href'))!
+	);
+	expect([csv.status(), csv.headers()['content-type']]).toEqual([200, 'text/csv; charset=utf-8']);
+	expect(await csv.text()).toContain('kind,zone,pins,units,defects_per_unit,expected,residual,share');
+	const png = await page.request.get(
+		(await page.getByRole('link', { name: 'Download the map (PNG)' }).getAttribute('href'))!
+	);
+	expect([png.status(), png.headers()['content-type']]).toEqual([200, 'image/png']);
+
 	// From here a repair request starts with the cavity and the hot zones filled in.
 	await page.getByRole('link', { name: 'Request a repair for these zones' }).click();
 	await expect(page).toHaveURL(/\/repairs\/new\?.*cavity=3/);
