@@ -43,6 +43,12 @@ test('a toolmaker finds the worn gate of cavity 3 on the Front view', async ({ p
 	await expect(zones.locator('th[aria-sort="descending"]')).toContainText('Pins');
 	await shoot(page, 'hotspots-cavity-3');
 
+	// The pins themselves, over the map, on demand.
+	await page.getByLabel(/Show the pins/).check();
+	await expect(page.getByRole('img', { name: /^Density map/ })).not.toHaveAttribute('data-pins', '0');
+	await shoot(page, 'hotspots-pins');
+	await page.getByLabel(/Show the pins/).uncheck();
+
 	await page.getByRole('tab', { name: 'Regions' }).click();
 	await expect(page.getByRole('tab', { name: 'Regions' })).toHaveAttribute('aria-selected', 'true');
 	const gate = page.getByRole('tabpanel').getByRole('link', { name: 'Gate side' });

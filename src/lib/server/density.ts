@@ -254,3 +254,21 @@ export async function zonesCsv(orgId: string, viewId: string, q: DensityQuery): 
 	];
 	return Papa.unparse(rows.map((row) => row.map((v) => (typeof v === 'number' ? Number(v.toPrecision(8)) : v))));
 }
+
+/** The newest pins of a view under the filters, at most `limit` of them, to draw over the map. */
+export async function pinsOf(orgId: string, viewId: string, q: DensityQuery, limit = 5000) {
+	const { view } = await viewOf(orgId, viewId);
+	const where = filtersSql(orgId, view.partId, viewId, q);
+	const [rows, [total]] = await Promise.all([
+		db().execute<{ x: number; y: number; t: string }>(sql`
+			SELECT p.x, p.y, p.defect_type_id AS t FROM pin p JOIN sample s ON s.id = p.sample_id
+			WHERE ${where.pins} ORDER BY p.created_at DESC LIMIT ${limit}`),
+		db().execute<{ n: number }>(
+			sql`SELECT count(*)::int AS n FROM pin p JOIN sample s ON s.id = p.sample_id WHERE ${where.pins}`
+		)
+	]);
+	return {
+		pins: rows.map((r) => ({ x: Number(r.x), y: Number(r.y), type: r.t })),
+		total: Number(total?.n ?? 0)
+	};
+}

@@ -42,7 +42,7 @@ export const load = (async (event) => {
 	if ((bFrom || bTo) && !queryB) notUnderstood.push('Period B needs ISO dates, e.g. 2026-11-30.');
 
 	const choicesOut = {
-		types: types.map(({ id, code, name }) => ({ id, code, name })),
+		types: types.map(({ id, code, name, colour }) => ({ id, code, name, colour })),
 		tools: tools
 			.filter((t) => t.partIds.includes(part.id))
 			.map(({ id, code, name, cavityCount }) => ({ id, code, name, cavityCount })),
