@@ -137,6 +137,8 @@ test('an engineer reads Trends, a closed sample arrives live with its signal, an
 
 	// Back to the u-chart of all types; a second page follows the Signals inbox of the part.
 	await trends.getByLabel('Defect type', { exact: true }).selectOption({ label: 'All types' });
+	// The method links carry the filters of the address: wait for it to drop the type first.
+	await expect(trends).not.toHaveURL(/type=/);
 	await trends.getByRole('link', { name: 'u-chart' }).click();
 	await expect(chart).toHaveAttribute('data-method', 'u');
 	await expect(trends).not.toHaveURL(/type=/);
