@@ -1,4 +1,5 @@
 import { expect, test, type Page } from '@playwright/test';
+import { closedSample, demo } from './demo-api';
 import { shoot, signIn } from './helpers';
 
 /** Opens Hot spots for the demo part FW-118 and waits for the map to be drawn. */
@@ -95,7 +96,10 @@ test('a toolmaker finds the worn gate of cavity 3 on the Front view', async ({ p
 	expect(new URL(page.url()).searchParams.getAll('zone').length).toBeGreaterThan(0);
 });
 
-test('a viewer can read the hot spots at tablet width', async ({ page }) => {
+test('a viewer reads the hot spots at tablet width, and they follow a sample closed elsewhere', async ({
+	page,
+	browser
+}) => {
 	await page.setViewportSize({ width: 768, height: 1024 });
 	await signIn(page, 'viewer@example.com');
 	await openFw118(page);
@@ -104,4 +108,15 @@ test('a viewer can read the hot spots at tablet width', async ({ page }) => {
 	await expect(page.getByText(/support, and do not replace/)).toBeVisible();
 	await expect(page.getByRole('link', { name: 'Request a repair for these zones' })).toHaveCount(0);
 	await shoot(page, 'hotspots-viewer-768');
+
+	// A sample with two pins closes on the line: the open map counts them without a reload.
+	await expect(page.getByTestId('live-state')).toHaveAttribute('data-live', 'yes');
+	const counts = page.getByTestId('map-counts');
+	const before = Number(await counts.getAttribute('data-pins'));
+	const line = await browser.newContext({ baseURL: new URL(page.url()).origin });
+	const engineer = await line.newPage();
+	await signIn(engineer, 'engineer@example.com');
+	await closedSample(engineer.request, await demo(engineer.request), [['SK'], ['FL']]);
+	await line.close();
+	await expect(counts).toHaveAttribute('data-pins', String(before + 2));
 });

@@ -1,5 +1,19 @@
 import { expect, test, type Page } from '@playwright/test';
+import sharp from 'sharp';
 import { shoot, signIn } from './helpers';
+
+/** A made-up photo of a tool insert: a grey field with a darker block, 1600 × 1200. */
+const photoFixture = () =>
+	sharp({ create: { width: 1600, height: 1200, channels: 3, background: { r: 140, g: 140, b: 135 } } })
+		.composite([
+			{
+				input: { create: { width: 600, height: 400, channels: 3, background: { r: 60, g: 60, b: 60 } } },
+				left: 500,
+				top: 400
+			}
+		])
+		.png()
+		.toBuffer();
 
 /** The calendar day `offset` days from today, as a date input holds it. */
 function isoDay(offset: number) {
@@ -39,12 +53,14 @@ test('a viewer reads the demo repair but has nothing to press', async ({ page })
 	await expect(page.getByTestId('my-queue')).toHaveCount(0);
 });
 
-test('a toolmaker marks the gate repair done and sees the rate drop', async ({ page }) => {
+test('a toolmaker finds the gate repair from Hot spots, marks it done with a photo, and sees the rate drop', async ({
+	page
+}) => {
 	await page.setViewportSize({ width: 1280, height: 900 });
 	await signIn(page, 'toolmaker@example.com');
+	// The queue first: the demo's repair waits in the toolmaker's own list.
 	await page.getByRole('link', { name: 'Repairs', exact: true }).first().click();
 	await expect(page.getByRole('heading', { name: 'Repairs', level: 1 })).toBeVisible();
-
 	await page.getByTestId('my-queue').click();
 	await expect(page).toHaveURL(/mine=1/);
 	await expect(page.getByTestId('my-queue')).toHaveAttribute('aria-checked', 'true');
@@ -55,7 +71,24 @@ test('a toolmaker marks the gate repair done and sees the rate drop', async ({ p
 	await expect(row.getByTestId('repair-state')).toHaveText('Accepted');
 	await shoot(page, 'repairs-queue');
 
-	await row.getByRole('link').click();
+	// Hot spots for the mould's cavity 3: the hot zone sits at the gate, and the repair is listed beside it.
+	await page.getByRole('link', { name: 'Hot spots', exact: true }).first().click();
+	const part = page.getByLabel('Part', { exact: true });
+	const partId = await part.locator('option', { hasText: 'FW-118' }).getAttribute('value');
+	if ((await part.inputValue()) !== partId) await part.selectOption(partId!);
+	const tool = page.getByLabel('Tool', { exact: true });
+	await tool.selectOption({ label: (await tool.locator('option', { hasText: 'MQ-4' }).textContent())!.trim() });
+	await expect(page).toHaveURL(/tool=/);
+	await page.getByLabel('Cavity').selectOption('3');
+	await expect(page).toHaveURL(/cavity=3/);
+	const top = page.getByRole('tabpanel').getByRole('table').locator('tbody tr').first().locator('td').nth(1);
+	await expect(top).toHaveText(/^[DE]\d$/);
+	const listed = page.getByTestId('tool-repair').filter({ hasText: 'MQ-4 · cavity 3' });
+	await expect(listed).toHaveCount(1);
+	await expect(listed.getByTestId('repair-state')).toHaveText('Accepted');
+	await shoot(page, 'repairs-from-hotspots');
+	await listed.click();
+
 	await expect(page.getByRole('heading', { name: 'MQ-4 · cavity 3', level: 1 })).toBeVisible();
 	await expectEvidenceImage(page);
 	const counts = page.getByTestId('evidence-counts');
@@ -65,6 +98,13 @@ test('a toolmaker marks the gate repair done and sees the rate drop', async ({ p
 	await expect(page.getByTestId('note')).toContainText('gate insert looks worn');
 	await shoot(page, 'repairs-detail-accepted');
 
+	// A photo of the repaired insert goes with "done"; the browser shrinks it first.
+	await page.getByTestId('photo-file').setInputFiles({
+		name: 'insert.png',
+		mimeType: 'image/png',
+		buffer: await photoFixture()
+	});
+	await expect(page.getByTestId('chosen-photos').locator('img')).toHaveCount(1);
 	// A date in the future is refused by the browser's own limit; the real one is 14 days ago.
 	await expect(page.getByLabel('Repair date')).toHaveAttribute('max', isoDay(0));
 	await page.getByLabel('Repair date').fill(isoDay(-14));
@@ -82,7 +122,24 @@ test('a toolmaker marks the gate repair done and sees the rate drop', async ({ p
 	await expect(page.getByTestId('rate-before')).toBeVisible();
 	await expect(page.getByTestId('rate-after')).toBeVisible();
 	await expect(page.getByTestId('work-done')).toContainText('Gate insert of cavity 3 replaced');
+	const photo = page.getByTestId('repair-photos').locator('img');
+	await expect(photo).toHaveCount(1);
+	await expect
+		.poll(() => photo.evaluate((i: HTMLImageElement) => (i.complete ? i.naturalWidth : 0)), { timeout: 15_000 })
+		.toBeGreaterThan(0);
 	await shoot(page, 'repairs-verification');
+
+	// The map before and after, with the zones that changed.
+	const compare = page.getByRole('link', { name: 'Compare the map before and after the repair' });
+	const back = page.url();
+	await compare.click();
+	await expect(page.getByRole('heading', { name: /period A minus period B/ })).toBeVisible();
+	await expect(page.getByTestId('zone-changes')).toBeVisible();
+	await page.getByRole('tab', { name: 'Regions' }).click();
+	const gate = page.getByTestId('zone-changes').locator('tr', { hasText: 'Gate side' });
+	await expect(gate).toContainText('lower in A');
+	await shoot(page, 'repairs-compare');
+	await page.goto(back);
 
 	await page.getByLabel('Note (optional)').fill('40 parts of cavity 3 checked by eye too: no short shots.');
 	await page.getByRole('button', { name: 'Verified', exact: true }).click();
@@ -143,4 +200,23 @@ test('an engineer requests a repair of cavity 1, zone B3', async ({ page }) => {
 	await expect(row.getByTestId('repair-state')).toHaveText('Requested');
 	await page.setViewportSize({ width: 1280, height: 900 });
 	await shoot(page, 'repairs-queue-open');
+});
+
+test('an open Repairs queue follows a repair accepted elsewhere, without a reload', async ({ page, browser }) => {
+	await page.setViewportSize({ width: 1280, height: 900 });
+	await signIn(page, 'viewer@example.com');
+	await page.goto('/repairs');
+	const row = page.getByTestId('repair-row').filter({ hasText: 'MQ-4 · cavity 1' });
+	await expect(row.getByTestId('repair-state')).toHaveText('Requested');
+	await expect(page.getByTestId('live-state')).toHaveAttribute('data-live', 'yes');
+
+	const other = await browser.newContext({ baseURL: new URL(page.url()).origin });
+	const toolmaker = await other.newPage();
+	await signIn(toolmaker, 'toolmaker@example.com');
+	const id = (await row.getByRole('link').getAttribute('href'))!.split('/').pop()!;
+	const res = await toolmaker.request.post(`/api/v1/repairs/${id}`, { data: { action: 'accept' } });
+	expect(res.status()).toBe(200);
+	await other.close();
+
+	await expect(row.getByTestId('repair-state')).toHaveText('Accepted');
 });

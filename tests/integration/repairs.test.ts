@@ -10,11 +10,23 @@ import { createDefectType } from '../../src/lib/server/defects';
 import { addRevision, createView, setGrid } from '../../src/lib/server/drawings';
 import { createOrganisation } from '../../src/lib/server/orgs';
 import { createPart } from '../../src/lib/server/parts';
-import { actOnRepair, createRepair, evidencePng, listRepairs, verification } from '../../src/lib/server/repairs';
+import {
+	actOnRepair,
+	addRepairPhoto,
+	createRepair,
+	evidencePng,
+	listRepairPhotos,
+	listRepairs,
+	MAX_REPAIR_PHOTOS,
+	repairPhotoImage,
+	verification
+} from '../../src/lib/server/repairs';
+import { publish, subscribe, type LiveEvent } from '../../src/lib/server/live';
+import { listKeys } from '../../src/lib/server/storage';
 import { acceptInvitation, invite } from '../../src/lib/server/team';
 import { createTool } from '../../src/lib/server/tools';
 import type { Role } from '../../src/lib/roles';
-import { good } from '../fixtures/images';
+import { bad, good, pixelBomb } from '../fixtures/images';
 import { accessFor, expectDomainError, mailTo, newUser } from './helpers';
 
 const DAY = 24 * 3600 * 1000;
@@ -152,6 +164,84 @@ describe('repairs', () => {
 
 		const other = await plant('repair-other');
 		await expectDomainError(createRepair(other.access, { ...request, partId: other.part.id }), 404);
+	});
+
+	it('takes photos with "done" all or none, and one at a time while accepted or done, once per id', async () => {
+		const p = await plant('repair-photo');
+		const toolmaker = await p.member('toolmaker');
+		const r = await createRepair(
+			p.access,
+			repairSchema.parse({ partId: p.part.id, toolId: p.mould.id, cavity: 1, viewId: p.view.id, zones: ['A1'] })
+		);
+		// Open Repairs pages follow the repair through the live events; first make sure this process listens.
+		const moves: string[] = [];
+		const stop = subscribe((e: LiveEvent) => {
+			if (e.type === 'repair.changed' && e.orgId === p.access.org.id) moves.push(e.repairId);
+		});
+		const probe = { type: 'repair.changed', orgId: p.access.org.id, partId: p.part.id, repairId: 'probe' } as const;
+		await expect.poll(async () => (await publish(probe), moves.includes('probe'))).toBe(true);
+		const prefix = `orgs/${p.access.org.id}/repairs/${r.id}/photos/`;
+		const done = { action: 'done' as const, repairDate: new Date().toISOString(), workDone: 'Gate insert replaced.' };
+		// Photos go with "done" only; a requested repair takes none.
+		await expectDomainError(actOnRepair(toolmaker.access, r.id, { action: 'accept' }, [await good.webp()]), 422);
+		await expectDomainError(
+			addRepairPhoto(toolmaker.access, r.id, randomUUID(), await good.webp()),
+			409,
+			'wrong_state'
+		);
+		await actOnRepair(toolmaker.access, r.id, { action: 'accept' });
+
+		// One bad photo among good ones refuses the step and stores nothing, in the database or the bucket.
+		for (const [file, status] of [
+			[await good.svg(), 415],
+			[await bad.truncatedPng(), 422],
+			[pixelBomb(), 413]
+		] as const) {
+			await expectDomainError(actOnRepair(toolmaker.access, r.id, done, [await good.photo(), file]), status);
+		}
+		const tooMany = Array.from({ length: MAX_REPAIR_PHOTOS + 1 }, () => Buffer.from('x'));
+		await expectDomainError(actOnRepair(toolmaker.access, r.id, done, tooMany), 422);
+		expect(await listRepairPhotos(p.access.org.id, r.id)).toEqual([]);
+		expect(await listKeys(prefix)).toEqual([]);
+		expect((await listRepairs(p.access, { state: 'accepted' })).map((x) => x.id)).toEqual([r.id]);
+
+		const viewer = await p.member('viewer');
+		await expectDomainError(addRepairPhoto(viewer.access, r.id, randomUUID(), await good.webp()), 403);
+
+		const marked = await actOnRepair(toolmaker.access, r.id, done, [await good.photo(), await good.jpeg()]);
+		expect(marked.state).toBe('done');
+		const photos = await listRepairPhotos(p.access.org.id, r.id);
+		// 4000 × 3000 with orientation 6 → upright 3000 × 4000 → 1200 × 1600; 1200 × 800 with orientation 6 → 800 × 1200.
+		expect(photos.map((x) => [x.width, x.height]).sort()).toEqual([
+			[1200, 1600],
+			[800, 1200]
+		]);
+		expect(await listKeys(prefix)).toHaveLength(4);
+		const shown = await repairPhotoImage(p.access.org.id, r.id, photos[0]!.id, 'display');
+		const meta = await sharp(Buffer.from(await new Response(shown.body).arrayBuffer())).metadata();
+		expect([meta.format, meta.exif]).toEqual(['webp', undefined]);
+
+		// One more, from the API, sent twice: kept once.
+		const id = randomUUID();
+		const first = await addRepairPhoto(toolmaker.access, r.id, id, await good.webp());
+		const again = await addRepairPhoto(toolmaker.access, r.id, id, await good.webp());
+		expect([first.created, again.created]).toEqual([true, false]);
+		expect(await listRepairPhotos(p.access.org.id, r.id)).toHaveLength(3);
+
+		// Another organisation sees none of it.
+		const other = await plant('repair-photo-other');
+		await expectDomainError(repairPhotoImage(other.access.org.id, r.id, id, 'thumb'), 404);
+		await expectDomainError(addRepairPhoto(other.access, r.id, randomUUID(), await good.webp()), 404);
+		// A judged repair takes no more photos.
+		await actOnRepair(toolmaker.access, r.id, { action: 'not_verified', note: '' });
+		await expectDomainError(
+			addRepairPhoto(toolmaker.access, r.id, randomUUID(), await good.webp()),
+			409,
+			'wrong_state'
+		);
+		// accept, done, one API photo (the repeat is silent), not verified.
+		await expect.poll(() => moves.filter((m) => m === r.id).length).toBe(4);
+		stop();
 	});
 
 	it('refuses a request without zones or regions, and a cavity the tool does not have', async () => {

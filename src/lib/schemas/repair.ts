@@ -47,5 +47,7 @@ export const repairActionSchema = z.discriminatedUnion(
 
 export const repairListSchema = z.object({
 	state: z.enum(['requested', 'accepted', 'done', 'verified', 'not_verified', 'open']).default('open'),
-	mine: z.enum(['1', '0']).optional()
+	mine: z.enum(['1', '0']).optional(),
+	part: id.optional(),
+	tool: id.optional()
 });

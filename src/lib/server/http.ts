@@ -68,7 +68,11 @@ const SECRET_FIELDS = new Set(['password', 'confirm', 'currentPassword']);
  * Runs a form action: parses the form with `schema`, calls `fn`, and turns a bad form or a
  * domain error into `fail(status, { message, issues, values })` for the page to show.
  */
-export async function act<S extends z.ZodType, R>(request: Request, schema: S, fn: (data: z.infer<S>) => Promise<R>) {
+export async function act<S extends z.ZodType, R>(
+	request: Request,
+	schema: S,
+	fn: (data: z.infer<S>, form: FormData) => Promise<R>
+) {
 	let form: FormData;
 	try {
 		form = await request.formData();
@@ -96,11 +100,17 @@ export async function act<S extends z.ZodType, R>(request: Request, schema: S, f
 		return fail(400, { message: 'Please check the fields marked below.', issues: issuesOf(parsed.error), values });
 	}
 	try {
-		return await fn(parsed.data);
+		return await fn(parsed.data, form);
 	} catch (e) {
 		if (e instanceof DomainError) return fail(e.status, { message: e.message, issues: e.issues ?? [], values });
 		throw e;
 	}
+}
+
+/** The files sent under `name` in a form (an empty file input sends one empty file: left out). */
+export async function formFiles(form: FormData, name: string): Promise<Buffer[]> {
+	const files = form.getAll(name).filter((v): v is File => typeof v !== 'string' && v.size > 0);
+	return Promise.all(files.map(async (f) => Buffer.from(await f.arrayBuffer())));
 }
 
 /** Reads an upload body, refusing it as soon as it passes `maxBytes` (with or without Content-Length). */

@@ -13,6 +13,7 @@ export type LiveEvent =
 	| { type: 'signals.new'; orgId: string; partId: string; count: number }
 	| { type: 'signals.changed'; orgId: string; partId: string }
 	| { type: 'history.imported'; orgId: string; partId: string }
+	| { type: 'repair.changed'; orgId: string; partId: string; repairId: string }
 	| { type: 'resync' };
 
 const CHANNEL = 'stipple_live';

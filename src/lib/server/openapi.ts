@@ -281,6 +281,25 @@ const paths: ZodOpenApiPathsObject = {
 			requestBody: json(repairActionSchema)
 		})
 	},
+	'/repairs/{repairId}/evidence.png': {
+		get: {
+			summary: 'The density map frozen with the request',
+			tags: ['Repairs'],
+			requestParams: { path: id('repairId') },
+			responses: { '200': { description: 'PNG', content: { 'image/png': {} } }, ...errors }
+		}
+	},
+	'/repairs/{repairId}/photos': {
+		get: op('Photos of the repaired tool', ['Repairs'], { requestParams: { path: id('repairId') } })
+	},
+	'/repairs/{repairId}/photos/{photoId}': {
+		put: op(
+			'Add a photo of the repaired tool (JPEG, PNG or WebP as the body) while the repair is accepted or done; the photo id is yours',
+			['Repairs'],
+			{ requestParams: { path: z.object({ repairId: z.uuid(), photoId: z.uuid() }) }, requestBody: image },
+			{ status: '201' }
+		)
+	},
 	'/repairs/{repairId}/verification': {
 		get: op('Before against after the repair date: exact test for two Poisson rates', ['Repairs'], {
 			requestParams: { path: id('repairId') }
@@ -299,7 +318,8 @@ const paths: ZodOpenApiPathsObject = {
 	},
 	'/events': {
 		get: {
-			summary: 'Server-sent events: sample.closed, signals.new, signals.changed, history.imported, resync',
+			summary:
+				'Server-sent events: sample.closed, signals.new, signals.changed, history.imported, repair.changed, resync',
 			tags: ['Live'],
 			requestParams: { query: z.object({ part: z.uuid().optional() }) },
 			responses: { '200': { description: 'An event stream', content: { 'text/event-stream': {} } }, ...errors }

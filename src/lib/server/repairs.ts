@@ -13,11 +13,14 @@ import type { Access } from './access';
 import { audit } from './audit';
 import { publicOrigin } from './config';
 import { db } from './db';
-import { member, part, partView, repair, tool, toolPart, user } from './db/schema';
+import { member, part, partView, repair, repairPhoto, tool, toolPart, user } from './db/schema';
 import { densityPng } from './density';
-import { DomainError, forbidden, notFound } from './errors';
+import { conflict, DomainError, forbidden, notFound } from './errors';
+import { processImage } from './images';
+import { publish } from './live';
 import { sendMail } from './mail';
-import { getObjectBytes, putObject } from './storage';
+import { PHOTO_LONG_SIDE } from './photos';
+import { deleteObjects, getObject, getObjectBytes, putObject } from './storage';
 
 const DAY = 24 * 3600 * 1000;
 type Repair = typeof repair.$inferSelect;
@@ -135,6 +138,7 @@ export async function createRepair(access: Access, input: RepairInput) {
 		});
 		return row!;
 	});
+	await changed(row);
 	await tell(row, 'A repair is requested');
 	return row;
 }
@@ -164,7 +168,19 @@ const NEXT: Record<string, Repair['state'][]> = {
 	not_verified: ['done']
 };
 
-export async function actOnRepair(access: Access, id: string, input: z.infer<typeof repairActionSchema>) {
+/** At most this many photos go with one step; more are refused before any is stored. */
+export const MAX_REPAIR_PHOTOS = 8;
+
+/**
+ * The next step of a repair. "done" may bring photos of the repaired tool: each is read and
+ * shrunk before anything is stored, so a bad one refuses the step and leaves nothing behind.
+ */
+export async function actOnRepair(
+	access: Access,
+	id: string,
+	input: z.infer<typeof repairActionSchema>,
+	photos: Buffer[] = []
+) {
 	if (!mayChange(access)) throw forbidden('Engineers and toolmakers work on repairs.');
 	const before = await getRepair(access.org.id, id);
 	if (!NEXT[input.action]!.includes(before.state))
@@ -173,6 +189,10 @@ export async function actOnRepair(access: Access, id: string, input: z.infer<typ
 			'wrong_state',
 			`This repair is ${before.state.replace('_', ' ')}; it cannot be ${input.action.replace('_', ' ')} now.`
 		);
+	if (photos.length && input.action !== 'done')
+		throw new DomainError(422, 'invalid', 'Photos go with marking the repair done.');
+	if (photos.length > MAX_REPAIR_PHOTOS)
+		throw new DomainError(422, 'invalid', `At most ${MAX_REPAIR_PHOTOS} photos at a time.`);
 	const now = new Date();
 	let change: Partial<Repair>;
 	if (input.action === 'accept') {
@@ -195,19 +215,162 @@ export async function actOnRepair(access: Access, id: string, input: z.infer<typ
 			verifiedAt: now
 		};
 	}
-	const [row] = await db().transaction(async (tx) => {
-		const rows = await tx.update(repair).set(change).where(eq(repair.id, id)).returning();
-		await audit(tx, access, {
-			action: `repair.${input.action}`,
-			subject: 'part',
-			subjectId: before.partId,
-			before: { repair: id, state: before.state },
-			after: { repair: id, state: change.state }
+	const stored = await storePhotos(
+		access.org.id,
+		id,
+		photos.map((bytes) => ({ id: crypto.randomUUID(), bytes }))
+	);
+	try {
+		const [row] = await db().transaction(async (tx) => {
+			// The state is checked again under the row lock: two people pressing "Mark done" at once.
+			const [locked] = await tx.select({ state: repair.state }).from(repair).where(eq(repair.id, id)).for('update');
+			if (locked?.state !== before.state) throw conflict('Someone else moved this repair on meanwhile; reload it.');
+			const rows = await tx.update(repair).set(change).where(eq(repair.id, id)).returning();
+			if (stored.length) await tx.insert(repairPhoto).values(stored.map((p) => p.row(access.user.id)));
+			await audit(tx, access, {
+				action: `repair.${input.action}`,
+				subject: 'part',
+				subjectId: before.partId,
+				before: { repair: id, state: before.state },
+				after: { repair: id, state: change.state, ...(stored.length ? { photos: stored.length } : {}) }
+			});
+			return rows;
 		});
-		return rows;
+		await changed(row!);
+		await tell(row!, `Repair ${row!.state.replace('_', ' ')}`);
+		return row!;
+	} catch (e) {
+		await deleteObjects(stored.flatMap((p) => p.keys)).catch(() => {});
+		throw e;
+	}
+}
+
+/** Reads and shrinks every photo first (a bad one refuses them all), then puts them in the bucket. */
+async function storePhotos(orgId: string, repairId: string, photos: { id: string; bytes: Buffer }[]) {
+	const images = await Promise.all(
+		photos.map((p) => processImage(p.bytes, { svg: false, displayLongSide: PHOTO_LONG_SIDE }))
+	);
+	const stored = photos.map((p, i) => {
+		const image = images[i]!;
+		const prefix = `orgs/${orgId}/repairs/${repairId}/photos/${p.id}`;
+		const keys = { display: `${prefix}/display.webp`, thumb: `${prefix}/thumb.webp` };
+		return {
+			image,
+			keys: Object.values(keys),
+			row: (createdBy: string) => ({
+				id: p.id,
+				organizationId: orgId,
+				repairId,
+				displayKey: keys.display,
+				thumbKey: keys.thumb,
+				width: image.display.width,
+				height: image.display.height,
+				createdBy
+			}),
+			put: () =>
+				Promise.all([
+					putObject(keys.display, image.display.bytes, 'image/webp'),
+					putObject(keys.thumb, image.thumb.bytes, 'image/webp')
+				])
+		};
 	});
-	await tell(row!, `Repair ${row!.state.replace('_', ' ')}`);
-	return row!;
+	try {
+		await Promise.all(stored.map((p) => p.put()));
+	} catch (e) {
+		await deleteObjects(stored.flatMap((p) => p.keys)).catch(() => {});
+		throw e;
+	}
+	return stored;
+}
+
+const PHOTO_STATES: Repair['state'][] = ['accepted', 'done'];
+
+/**
+ * Adds one photo to an accepted or done repair (`PUT /api/v1/repairs/{id}/photos/{photoId}`).
+ * The client makes the id, so the same upload again is kept once.
+ */
+export async function addRepairPhoto(access: Access, repairId: string, photoId: string, bytes: Buffer) {
+	if (!mayChange(access)) throw forbidden('Engineers and toolmakers add photos to repairs.');
+	const r = await getRepair(access.org.id, repairId);
+	const again = async () => {
+		const [row] = await db().select().from(repairPhoto).where(eq(repairPhoto.id, photoId));
+		if (row && (row.organizationId !== access.org.id || row.repairId !== repairId))
+			throw conflict('This photo id is taken.');
+		return row ? { photo: photoOut(row), created: false } : null;
+	};
+	const seen = await again();
+	if (seen) return seen;
+	if (!PHOTO_STATES.includes(r.state))
+		throw new DomainError(
+			409,
+			'wrong_state',
+			`This repair is ${r.state.replace('_', ' ')}; photos are added while it is accepted or done.`
+		);
+	const [p] = await storePhotos(access.org.id, repairId, [{ id: photoId, bytes }]);
+	try {
+		const row = await db().transaction(async (tx) => {
+			const [locked] = await tx
+				.select({ state: repair.state })
+				.from(repair)
+				.where(eq(repair.id, repairId))
+				.for('update');
+			if (!locked || !PHOTO_STATES.includes(locked.state))
+				throw conflict('This repair was judged meanwhile; photos are added while it is accepted or done.');
+			const [row] = await tx.insert(repairPhoto).values(p!.row(access.user.id)).onConflictDoNothing().returning();
+			if (row) {
+				await audit(tx, access, {
+					action: 'repair.photo',
+					subject: 'part',
+					subjectId: r.partId,
+					before: null,
+					after: { repair: repairId, photo: photoId }
+				});
+			}
+			return row;
+		});
+		if (!row) {
+			await deleteObjects(p!.keys).catch(() => {});
+			return (await again())!;
+		}
+		await changed(r);
+		return { photo: photoOut(row), created: true };
+	} catch (e) {
+		await deleteObjects(p!.keys).catch(() => {});
+		throw e;
+	}
+}
+
+const photoOut = (row: typeof repairPhoto.$inferSelect) => ({
+	id: row.id,
+	repairId: row.repairId,
+	width: row.width,
+	height: row.height,
+	createdAt: row.createdAt
+});
+
+export async function listRepairPhotos(orgId: string, repairId: string) {
+	const rows = await db()
+		.select()
+		.from(repairPhoto)
+		.where(and(eq(repairPhoto.repairId, repairId), eq(repairPhoto.organizationId, orgId)))
+		.orderBy(repairPhoto.createdAt, repairPhoto.id);
+	return rows.map(photoOut);
+}
+
+export async function repairPhotoImage(orgId: string, repairId: string, photoId: string, variant: 'display' | 'thumb') {
+	const [row] = await db()
+		.select({ displayKey: repairPhoto.displayKey, thumbKey: repairPhoto.thumbKey })
+		.from(repairPhoto)
+		.where(and(eq(repairPhoto.id, photoId), eq(repairPhoto.repairId, repairId), eq(repairPhoto.organizationId, orgId)));
+	if (!row) throw notFound('That photo');
+	return getObject(variant === 'display' ? row.displayKey : row.thumbKey);
+}
+
+/** Tells open Repairs and Hot spots pages that a repair moved. */
+async function changed(r: Repair) {
+	await publish({ type: 'repair.changed', orgId: r.organizationId, partId: r.partId, repairId: r.id }).catch(
+		(e: unknown) => console.error(`[stipple] live event: ${e instanceof Error ? e.message : String(e)}`)
+	);
 }
 
 /**
@@ -274,7 +437,9 @@ export async function listRepairs(access: Access, q: z.infer<typeof repairListSc
 			and(
 				eq(repair.organizationId, access.org.id),
 				q.state === 'open' ? inArray(repair.state, ['requested', 'accepted', 'done']) : eq(repair.state, q.state),
-				q.mine === '1' ? eq(repair.assigneeId, access.user.id) : undefined
+				q.mine === '1' ? eq(repair.assigneeId, access.user.id) : undefined,
+				q.part ? eq(repair.partId, q.part) : undefined,
+				q.tool ? eq(repair.toolId, q.tool) : undefined
 			)
 		)
 		.orderBy(desc(repair.createdAt));

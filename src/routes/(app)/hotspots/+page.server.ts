@@ -1,11 +1,13 @@
 import { densityQueryOf, densityQuerySchema, type DensityQuery } from '$lib/schemas/density';
-import { requireRole } from '$lib/server/access';
+import { requireRole, type Access } from '$lib/server/access';
 import { listTools } from '$lib/server/catalogue';
 import { typesForPart } from '$lib/server/defects';
 import { densityOf, zonesOf } from '$lib/server/density';
 import { listViews } from '$lib/server/drawings';
 import { trendChoices, trendParts } from '$lib/server/pareto';
+import { listRepairs } from '$lib/server/repairs';
 import { listMembers } from '$lib/server/team';
+import { compareZones } from '$lib/spatial/change';
 import type { PageServerLoad } from './$types';
 
 /** Period B shares every filter of A but its own from / before. */
@@ -15,7 +17,9 @@ const periodB = (q: DensityQuery, from: string | undefined, to: string | undefin
 };
 
 export const load = (async (event) => {
-	const { org, role } = requireRole(event, 'engineer', 'toolmaker', 'viewer');
+	const access = requireRole(event, 'engineer', 'toolmaker', 'viewer');
+	const { org, role } = access;
+	event.depends('app:hotspots');
 	const parts = await trendParts(org.id);
 	const params = event.url.searchParams;
 	const part = parts.find((p) => p.id === params.get('part')) ?? parts[0] ?? null;
@@ -65,11 +69,18 @@ export const load = (async (event) => {
 	};
 	if (!view) return { parts, part, views, view: null, choices: choicesOut, filters, notUnderstood };
 
-	const [a, zones, b] = await Promise.all([
+	const [a, zones, b, zonesB, repairs] = await Promise.all([
 		densityOf(org.id, view.id, query),
 		zonesOf(org.id, view.id, query),
-		queryB ? densityOf(org.id, view.id, queryB) : null
+		queryB ? densityOf(org.id, view.id, queryB) : null,
+		queryB ? zonesOf(org.id, view.id, queryB) : null,
+		query.tool ? repairsOfTool(access, part.id, query.tool, query.cavity) : []
 	]);
+	const change = (x: typeof zones.zones, y: typeof zones.zones) =>
+		x && y ? compareZones(x.zones, x.units, y.zones, y.units) : null;
+	const changes = zonesB
+		? { zones: change(zones.zones, zonesB.zones), regions: change(zones.regions, zonesB.regions) }
+		: null;
 	const { revisionId: _r, viewId: _v, clusterPoints: _c, ...zoneData } = zones;
 	const filtered =
 		(query.type?.length ?? 0) > 0 ||
@@ -85,9 +96,34 @@ export const load = (async (event) => {
 		notUnderstood,
 		density: { a, b },
 		zones: zoneData,
+		changes,
+		repairs,
 		repairHref: ['engineer', 'toolmaker', 'admin'].includes(role) ? repairLink(part.id, view.id, query, zoneData) : null
 	};
 }) satisfies PageServerLoad;
+
+/** The tool's repairs on this part (the cavity's, when one is chosen), open ones first, at most six. */
+async function repairsOfTool(access: Access, partId: string, toolId: string, cavity: number | undefined) {
+	const lists = await Promise.all(
+		(['open', 'verified', 'not_verified'] as const).map((state) =>
+			listRepairs(access, { state, part: partId, tool: toolId })
+		)
+	);
+	return lists
+		.flat()
+		.filter((r) => cavity === undefined || r.cavity === null || r.cavity === cavity)
+		.slice(0, 6)
+		.map((r) => ({
+			id: r.id,
+			state: r.state,
+			toolCode: r.toolCode,
+			cavity: r.cavity,
+			zones: r.zones,
+			regions: r.regions,
+			createdAt: r.createdAt,
+			repairDate: r.repairDate
+		}));
+}
 
 /** A repair request prefilled with what is on screen: the tool, cavity and types, and the zones well above their share. */
 function repairLink(

@@ -9,6 +9,7 @@ const TABS: readonly QueueTab[] = ['open', 'verified', 'not_verified', 'all'];
 export const load = (async (event) => {
 	// Every role may read the repairs; the actions check again.
 	const access = requireRole(event);
+	event.depends('app:repairs');
 	// The repair e-mails link to /repairs?repair={id}.
 	const linked = event.url.searchParams.get('repair');
 	if (linked && /^[0-9a-f-]{36}$/i.test(linked)) redirect(303, `/repairs/${linked}`);

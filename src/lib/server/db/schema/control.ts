@@ -194,3 +194,23 @@ export const repair = pgTable(
 	},
 	(t) => [index().on(t.organizationId, t.state), index().on(t.toolId)]
 );
+
+/** A photo of a repaired tool, taken when the repair is marked done; a display image and a thumbnail in S3. */
+export const repairPhoto = pgTable(
+	'repair_photo',
+	{
+		/** Made by the client for the API, so a retried upload is stored once; by the server for the form. */
+		id: uuid().primaryKey(),
+		organizationId: organizationId(),
+		repairId: uuid()
+			.notNull()
+			.references(() => repair.id, { onDelete: 'cascade' }),
+		displayKey: text().notNull(),
+		thumbKey: text().notNull(),
+		width: integer().notNull(),
+		height: integer().notNull(),
+		createdBy: text().references(() => user.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index().on(t.repairId)]
+);

@@ -5,9 +5,9 @@ import { listTools } from '$lib/server/catalogue';
 import { listDefectTypes } from '$lib/server/defects';
 import { listViews } from '$lib/server/drawings';
 import { DomainError } from '$lib/server/errors';
-import { act } from '$lib/server/http';
+import { act, formFiles } from '$lib/server/http';
 import { getPart } from '$lib/server/parts';
-import { actOnRepair, getRepair, verification } from '$lib/server/repairs';
+import { actOnRepair, getRepair, listRepairPhotos, verification } from '$lib/server/repairs';
 import { listMembers } from '$lib/server/team';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -22,6 +22,7 @@ interface Evidence {
 
 export const load = (async (event) => {
 	const access = requireRole(event);
+	event.depends('app:repairs');
 	const { org } = access;
 	let r;
 	try {
@@ -30,12 +31,13 @@ export const load = (async (event) => {
 		if (e instanceof DomainError) error(e.status, e.message);
 		throw e;
 	}
-	const [part, views, tools, types, members] = await Promise.all([
+	const [part, views, tools, types, members, photos] = await Promise.all([
 		getPart(org.id, r.partId),
 		listViews(org.id, r.partId),
 		listTools(org.id),
 		listDefectTypes(org.id),
-		listMembers(org.id)
+		listMembers(org.id),
+		listRepairPhotos(org.id, r.id)
 	]);
 	const nameOf = (id: string | null) => (id ? (members.find((m) => m.userId === id)?.name ?? 'a former member') : null);
 	// A judged repair keeps the comparison it was judged on; a done one is compared as it stands now.
@@ -47,6 +49,7 @@ export const load = (async (event) => {
 				: null;
 	return {
 		mayAct: ['engineer', 'toolmaker', 'admin'].includes(access.role),
+		partId: r.partId,
 		repair: {
 			id: r.id,
 			state: r.state,
@@ -71,15 +74,32 @@ export const load = (async (event) => {
 			workDone: r.workDone,
 			verifiedAt: r.verifiedAt
 		},
-		verification: check
+		photos,
+		verification: check,
+		compareHref: compareLink(r)
 	};
 }) satisfies PageServerLoad;
+
+/** Hot spots for the repaired tool: A after the repair date, B the same length before it. */
+function compareLink(r: Awaited<ReturnType<typeof getRepair>>) {
+	if (!r.repairDate) return null;
+	const day = (t: number) => new Date(t).toISOString().slice(0, 10);
+	const at = r.repairDate.getTime();
+	const span = Math.min(90, Math.max(14, Math.ceil((Date.now() - at) / 86_400_000))) * 86_400_000;
+	const q = new URLSearchParams({ part: r.partId, view: r.viewId, tool: r.toolId });
+	if (r.cavity !== null) q.set('cavity', String(r.cavity));
+	for (const t of r.defectTypeIds) q.append('type', t);
+	q.set('from', day(at));
+	q.set('bfrom', day(at - span));
+	q.set('bto', day(at));
+	return `/hotspots?${q}`;
+}
 
 export const actions = {
 	default: async (event) => {
 		const access = requireRole(event, 'engineer', 'toolmaker');
-		return act(event.request, repairActionSchema, async (input) => {
-			const row = await actOnRepair(access, event.params.repairId, input);
+		return act(event.request, repairActionSchema, async (input, form) => {
+			const row = await actOnRepair(access, event.params.repairId, input, await formFiles(form, 'photo'));
 			return { saved: row.state };
 		});
 	}

@@ -2,13 +2,17 @@ import { json } from '@sveltejs/kit';
 import { repairActionSchema } from '$lib/schemas/repair';
 import { requireRole } from '$lib/server/access';
 import { answer, readJson } from '$lib/server/http';
-import { actOnRepair, getRepair } from '$lib/server/repairs';
+import { actOnRepair, getRepair, listRepairPhotos } from '$lib/server/repairs';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = (event) =>
 	answer(async () => {
 		const { org } = requireRole(event);
-		return json({ repair: await getRepair(org.id, event.params.repairId) });
+		const [repair, photos] = await Promise.all([
+			getRepair(org.id, event.params.repairId),
+			listRepairPhotos(org.id, event.params.repairId)
+		]);
+		return json({ repair, photos });
 	});
 
 // The next step: accept, done (repair date, work done), verified or not_verified.

@@ -4,7 +4,14 @@
  * and one refetch covers both. The browser's EventSource reconnects by itself; after a gap the
  * server sends `resync`, and a reconnect refetches too, since events may have been missed.
  */
-const EVENTS = ['sample.closed', 'signals.new', 'signals.changed', 'history.imported', 'resync'] as const;
+export const LIVE_EVENTS = [
+	'sample.closed',
+	'signals.new',
+	'signals.changed',
+	'history.imported',
+	'repair.changed'
+] as const;
+export type LiveEventName = (typeof LIVE_EVENTS)[number];
 
 export class LiveFeed {
 	state = $state<'connecting' | 'live' | 'lost'>('connecting');
@@ -16,11 +23,15 @@ export class LiveFeed {
 	#timer: ReturnType<typeof setTimeout> | undefined;
 	#everConnected = false;
 
+	private readonly delay: number;
+
+	/** `events`: the ones this page cares about (all by default); a reconnect always refetches. */
 	constructor(
 		url: string,
 		private readonly onchange: () => Promise<unknown> | void,
-		private readonly delay = 400
+		{ delay = 400, events = LIVE_EVENTS }: { delay?: number; events?: readonly LiveEventName[] } = {}
 	) {
+		this.delay = delay;
 		const source = new EventSource(url);
 		this.#source = source;
 		source.onopen = () => {
@@ -31,7 +42,7 @@ export class LiveFeed {
 		source.onerror = () => {
 			if (source.readyState !== EventSource.OPEN) this.state = 'lost';
 		};
-		for (const name of EVENTS) source.addEventListener(name, () => this.#soon());
+		for (const name of [...events, 'resync']) source.addEventListener(name, () => this.#soon());
 	}
 
 	#soon() {
