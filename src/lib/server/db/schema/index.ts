@@ -4,3 +4,4 @@ export * from './catalogue';
 export * from './quality';
 export * from './inspection';
 export * from './control';
+export * from './stations';

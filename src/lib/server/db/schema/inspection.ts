@@ -16,6 +16,7 @@ import { user } from '../auth.schema';
 import { part, tool, viewRevision } from './catalogue';
 import { organizationId } from './columns';
 import { defectType } from './quality';
+import { stationKey } from './stations';
 
 export const sample = pgTable(
 	'sample',
@@ -41,6 +42,11 @@ export const sample = pgTable(
 			.default('open'),
 		closedAt: timestamp({ withTimezone: true }),
 		closedBy: text().references(() => user.id, { onDelete: 'set null' }),
+		/** Who found the defects: an inspector at the Bench, or a machine station with its key. */
+		source: text({ enum: ['bench', 'station'] })
+			.notNull()
+			.default('bench'),
+		stationKeyId: uuid().references(() => stationKey.id, { onDelete: 'set null' }),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [
