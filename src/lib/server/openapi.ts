@@ -4,7 +4,7 @@
  * Served at /api/v1/openapi.json.
  */
 import { z } from 'zod';
-import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObject } from 'zod-openapi';
+import { createDocument, type ZodOpenApiPathsObject } from 'zod-openapi';
 import { chartQueryFields, limitSetPatchSchema, limitSetSchema } from '$lib/schemas/chart';
 import { densityQuerySchema } from '$lib/schemas/density';
 import { repairActionSchema, repairListSchema, repairSchema } from '$lib/schemas/repair';
@@ -23,55 +23,7 @@ import {
 import { signalActionSchema, signalListSchema } from '$lib/schemas/signal';
 import { toolPatchSchema, toolSchema } from '$lib/schemas/tool';
 
-const errorBody = z
-	.object({
-		error: z.object({
-			code: z.string().meta({ example: 'invalid' }),
-			message: z.string().meta({ example: 'Some fields are missing or wrong.' }),
-			issues: z.array(z.object({ path: z.string(), message: z.string() })).optional()
-		})
-	})
-	.meta({ id: 'Error', description: 'Every 4xx answer has this shape.' });
-
-const anyJson = (description: string) => ({
-	description,
-	content: { 'application/json': { schema: z.object({}).catchall(z.unknown()) } }
-});
-const errors = {
-	'400': { description: 'Malformed body', content: { 'application/json': { schema: errorBody } } },
-	'401': { description: 'Not signed in', content: { 'application/json': { schema: errorBody } } },
-	'403': { description: 'Your role does not allow this', content: { 'application/json': { schema: errorBody } } },
-	'404': {
-		description: 'Not found (or another organisation’s)',
-		content: { 'application/json': { schema: errorBody } }
-	},
-	'409': { description: 'Conflicts with the current state', content: { 'application/json': { schema: errorBody } } },
-	'422': { description: 'Invalid input, with issues', content: { 'application/json': { schema: errorBody } } }
-};
-const json = (schema: z.ZodType) => ({ content: { 'application/json': { schema } } });
-const id = (name: string) => z.object({ [name]: z.uuid() });
-
-function op(
-	summary: string,
-	tags: string[],
-	extra: Omit<ZodOpenApiOperationObject, 'responses' | 'summary'> = {},
-	ok: { status?: string; description?: string } = {}
-): ZodOpenApiOperationObject {
-	return {
-		summary,
-		tags,
-		...extra,
-		responses: { [ok.status ?? '200']: anyJson(ok.description ?? 'OK'), ...errors }
-	};
-}
-
-const image = {
-	content: {
-		'image/png': { schema: z.string().meta({ format: 'binary' }) },
-		'image/jpeg': { schema: z.string().meta({ format: 'binary' }) },
-		'image/webp': { schema: z.string().meta({ format: 'binary' }) }
-	}
-};
+import { errors, id, image, json, op } from './openapi/common';
 
 const paths: ZodOpenApiPathsObject = {
 	'/health': { get: op('Is the service up', ['System']) },
