@@ -160,6 +160,20 @@ export class HttpSession {
 		return { status: res.status, body, elapsed: performance.now() - started };
 	}
 
+	/** Sends `bytes` as the body (an upload), with the session's cookies. */
+	async upload(pathname: string, bytes: Buffer, contentType: string, timeoutMs = 120_000): Promise<HttpAnswer> {
+		const started = performance.now();
+		const res = await fetch(`${this.base}${pathname}`, {
+			method: 'POST',
+			redirect: 'manual',
+			headers: { accept: 'application/json', 'content-type': contentType, ...this.cookieHeader() },
+			body: new Uint8Array(bytes),
+			signal: AbortSignal.timeout(timeoutMs)
+		});
+		const body = await res.text();
+		return { status: res.status, body, elapsed: performance.now() - started };
+	}
+
 	/** A request that must answer `expect`; its JSON body. */
 	async json<T>(method: string, pathname: string, body?: unknown, expect: number | number[] = 200): Promise<T> {
 		const answer = await this.request(method, pathname, body);
