@@ -34,6 +34,12 @@ export const SCREENS: readonly Screen[] = [
 		roles: ['toolmaker', 'engineer', 'admin', 'viewer']
 	},
 	{
+		path: '/reports',
+		label: 'Reports',
+		blurb: 'One part over a period, on one page to print or send as a PDF.',
+		roles: ['engineer', 'admin', 'toolmaker', 'viewer']
+	},
+	{
 		path: '/signals',
 		label: 'Signals',
 		blurb: 'Out-of-control points waiting for a cause and an action.',

@@ -6,6 +6,11 @@ const when = z.union([z.iso.datetime({ offset: true }), z.iso.date()], {
 	error: 'Use an ISO 8601 date or date and time, e.g. 2026-11-30 or 2026-11-30T06:00:00Z.'
 });
 
+/** Who found a sample's defects: an inspector at the Bench, or a machine station. */
+export const SAMPLE_SOURCES = ['bench', 'station'] as const;
+export type SampleSource = (typeof SAMPLE_SOURCES)[number];
+export const sampleSourceSchema = z.enum(SAMPLE_SOURCES, { error: 'Source is bench or station.' });
+
 export const CHART_METHODS = ['u', 'c', 'standardized', 'laney', 'exact', 'demerits'] as const;
 export type ChartMethod = (typeof CHART_METHODS)[number];
 
@@ -20,7 +25,9 @@ export const chartFiltersSchema = z.object({
 	region: z.string().trim().min(1).max(60, 'A region name is at most 60 characters.').optional(),
 	tool: id.optional(),
 	cavity: z.coerce.number().int('Cavity is a whole number.').min(1).max(128).optional(),
-	shift: z.string().trim().min(1).max(20, 'Shift is at most 20 characters.').optional()
+	shift: z.string().trim().min(1).max(20, 'Shift is at most 20 characters.').optional(),
+	/** Only samples found this way; count-only history has no source and drops out. */
+	source: sampleSourceSchema.optional()
 });
 export type ChartFilters = z.infer<typeof chartFiltersSchema>;
 
@@ -41,13 +48,13 @@ export const chartQueryFields = chartFiltersSchema.extend({
 	run: z.coerce.number().int('The run length is a whole number.').min(7).max(9).optional()
 });
 
-export const chartQuerySchema = z.preprocess(
-	(raw) =>
-		raw && typeof raw === 'object'
-			? Object.fromEntries(Object.entries(raw).filter(([, v]) => v !== '' && v !== undefined && v !== null))
-			: raw,
-	chartQueryFields
-);
+/** A query with its empty values left out (an empty form field means "any"). */
+export const withoutEmpty = (raw: unknown) =>
+	raw && typeof raw === 'object'
+		? Object.fromEntries(Object.entries(raw).filter(([, v]) => v !== '' && v !== undefined && v !== null))
+		: raw;
+
+export const chartQuerySchema = z.preprocess(withoutEmpty, chartQueryFields);
 export type ChartQuery = z.infer<typeof chartQuerySchema>;
 
 const exclusion = z.object({

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { sampleSourceSchema } from './chart';
 
 const id = z.uuid('Not a valid id.');
 const when = z.union([z.iso.datetime({ offset: true }), z.iso.date()], {
@@ -14,6 +15,8 @@ export const densityQuerySchema = z.object({
 	cavity: z.coerce.number().int('Cavity is a whole number.').min(1).max(128).optional(),
 	shift: z.string().trim().min(1).max(20).optional(),
 	inspector: z.string().trim().min(1).max(64).optional(),
+	/** Only samples found at the Bench, or only those a machine station sent. */
+	source: sampleSourceSchema.optional(),
 	/** Cells across the longer side of the drawing. */
 	cells: z.coerce.number().int('Cells is a whole number.').min(4).max(120).default(40),
 	/** Kernel bandwidth in drawing widths; Scott's rule when absent. */

@@ -35,9 +35,9 @@ export function chartKeyOf(filters: ChartFilters): string {
 }
 
 export function filtersOf(q: ChartQuery): ChartFilters {
-	const { type, zone, region, tool, cavity, shift } = q;
+	const { type, zone, region, tool, cavity, shift, source } = q;
 	return Object.fromEntries(
-		Object.entries({ type, zone, region, tool, cavity, shift }).filter(([, v]) => v !== undefined)
+		Object.entries({ type, zone, region, tool, cavity, shift, source }).filter(([, v]) => v !== undefined)
 	) as ChartFilters;
 }
 

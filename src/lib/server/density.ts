@@ -74,6 +74,7 @@ function filtersSql(orgId: string, partId: string, viewId: string, q: DensityQue
 		q.cavity !== undefined && sql`s.cavity = ${q.cavity}`,
 		q.shift && sql`s.shift = ${q.shift}`,
 		q.inspector && sql`s.inspector_id = ${q.inspector}`,
+		q.source && sql`s.source = ${q.source}`,
 		q.from && sql`s.taken_at >= ${new Date(q.from).toISOString()}`,
 		q.to && sql`s.taken_at < ${new Date(q.to).toISOString()}`
 	]);

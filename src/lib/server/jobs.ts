@@ -1,11 +1,14 @@
 /**
  * Background jobs on a PostgreSQL-backed queue (pg-boss): looking for signals after a sample
- * closes, and the e-mail about new ones. Jobs survive a crash and are retried with back-off; any
- * app process may run them.
+ * closes, the e-mail about new ones, and the weekly digest. Jobs survive a crash and are retried
+ * with back-off; any app process may run them.
  */
 import PgBoss from 'pg-boss';
 
-export const QUEUES = { evaluate: 'evaluate-signals', mail: 'signal-mail' } as const;
+export const QUEUES = { evaluate: 'evaluate-signals', mail: 'signal-mail', digest: 'weekly-digest' } as const;
+
+/** Monday 06:00 UTC. STIPPLE_DIGEST_CRON (five-field cron, UTC) moves it; `off` sends no digests. */
+export const DIGEST_CRON = '0 6 * * 1';
 
 export interface EvaluateJob {
 	orgId: string;
@@ -43,10 +46,39 @@ export function startJobs(): Promise<PgBoss> {
 		await b.work<SignalMailJob>(QUEUES.mail, { pollingIntervalSeconds: 1 }, async (jobs) => {
 			for (const job of jobs) await mailSignals(job.data);
 		});
+		await startDigest(b);
 		boss = b;
 		return b;
 	})();
 	return starting;
+}
+
+/**
+ * The weekly digest: pg-boss's schedule puts one job per cron tick in the queue (its own singleton
+ * per minute keeps several app processes from doubling it). The worker sends the digest of the last
+ * whole Monday-to-Sunday week; sendDigests itself records each (person, part, week) it sent, so a
+ * retry or a second run that week sends only what is missing.
+ */
+async function startDigest(b: PgBoss) {
+	await b.createQueue(QUEUES.digest, {
+		name: QUEUES.digest,
+		retryLimit: 4,
+		retryDelay: 300,
+		retryBackoff: true,
+		expireInSeconds: 3600
+	});
+	const cron = (process.env.STIPPLE_DIGEST_CRON ?? DIGEST_CRON).trim();
+	try {
+		if (cron === 'off') await b.unschedule(QUEUES.digest);
+		else await b.schedule(QUEUES.digest, cron, {}, { tz: 'UTC' });
+	} catch (e) {
+		// A mistyped STIPPLE_DIGEST_CRON must not stop the other queues.
+		console.error(`[stipple] jobs: weekly digest not scheduled (${e instanceof Error ? e.message : String(e)})`);
+	}
+	const { sendDigests, weekEndingOf } = await import('./digest');
+	await b.work(QUEUES.digest, { pollingIntervalSeconds: 30 }, async () => {
+		await sendDigests(weekEndingOf(new Date()));
+	});
 }
 
 export async function enqueue(queue: (typeof QUEUES)[keyof typeof QUEUES], data: object) {

@@ -24,6 +24,10 @@ import { signalActionSchema, signalListSchema } from '$lib/schemas/signal';
 import { toolPatchSchema, toolSchema } from '$lib/schemas/tool';
 
 import { errors, id, image, json, op } from './openapi/common';
+import { digestPaths } from './openapi/digest';
+import { exportsPaths } from './openapi/exports';
+import { reportPaths } from './openapi/report';
+import { stationsPaths } from './openapi/stations';
 
 const paths: ZodOpenApiPathsObject = {
 	'/health': { get: op('Is the service up', ['System']) },
@@ -276,7 +280,11 @@ const paths: ZodOpenApiPathsObject = {
 			requestParams: { query: z.object({ part: z.uuid().optional() }) },
 			responses: { '200': { description: 'An event stream', content: { 'text/event-stream': {} } }, ...errors }
 		}
-	}
+	},
+	...exportsPaths,
+	...reportPaths,
+	...stationsPaths,
+	...digestPaths
 };
 
 let cached: ReturnType<typeof createDocument> | undefined;

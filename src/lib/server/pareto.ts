@@ -1,8 +1,8 @@
 /**
  * Pareto of defect types for a part and period, and what the Trends filters can offer: counted in
  * SQL from the pins of closed samples and from count-only history typed by defect, the same way
- * the roll-up counts them (src/lib/server/rollup.ts). History has no positions, so it drops out
- * when a zone or region narrows the count.
+ * the roll-up counts them (src/lib/server/rollup.ts). History has no positions and no source, so it
+ * drops out when a zone, a region or a source narrows the count.
  */
 import { sql, type SQL } from 'drizzle-orm';
 import type { ChartFilters } from '$lib/schemas/chart';
@@ -52,6 +52,7 @@ export async function paretoFor(
 			...where('s'),
 			sql`s.state = 'closed'`,
 			sql`p.deleted_at IS NULL`,
+			f.source && sql`s.source = ${f.source}`,
 			f.zone && sql`p.zone = ${f.zone}`,
 			f.region && sql`${f.region} = ANY(p.regions)`
 		])}
@@ -61,7 +62,7 @@ export async function paretoFor(
 		FROM history_count h
 		WHERE ${and(where('h'))}
 		GROUP BY h.defect_type_id`;
-	const positional = !!(f.zone || f.region);
+	const benchOnly = !!(f.zone || f.region || f.source);
 	const rows = await db().execute<{
 		type_id: string | null;
 		code: string | null;
@@ -74,7 +75,7 @@ export async function paretoFor(
 	}>(sql`
 		SELECT x.type_id::text AS type_id, t.code, t.name, t.colour, t.shape, t.severity, t.position,
 			sum(x.count)::int AS count
-		FROM (${positional ? bench : sql`${bench} UNION ALL ${history}`}) x
+		FROM (${benchOnly ? bench : sql`${bench} UNION ALL ${history}`}) x
 		LEFT JOIN defect_type t ON t.id = x.type_id AND t.organization_id = ${orgId}
 		GROUP BY x.type_id, t.code, t.name, t.colour, t.shape, t.severity, t.position
 		ORDER BY sum(x.count) DESC, t.position NULLS LAST, t.code`);

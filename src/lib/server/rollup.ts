@@ -3,6 +3,7 @@
  * count-only history, never by loading pins into JavaScript. A zone or region narrows the count
  * (defects in that zone per unit inspected), not the sample size; history has no positions, so it
  * drops out of zone and region charts, and an untyped history total drops out of a per-type chart.
+ * History has no source either (Bench or station), so it drops out when a source is chosen.
  */
 import { sql, type SQL } from 'drizzle-orm';
 import type { ChartFilters } from '$lib/schemas/chart';
@@ -11,6 +12,7 @@ import { db } from './db';
 export interface RolledSample {
 	/** The sample's id, or an imported sample's name. */
 	sample: string;
+	/** 'bench': a sample taken in Stipple (at the Bench or sent by a station); 'history': count-only. */
 	source: 'bench' | 'history';
 	takenAt: Date;
 	size: number;
@@ -63,7 +65,7 @@ export async function rollup(orgId: string, partId: string, f: ChartFilters, per
 		FROM sample s
 		LEFT JOIN pin p ON ${pinOn}
 		LEFT JOIN defect_type dt ON dt.id = p.defect_type_id
-		WHERE ${and([...sampleWhere('s'), sql`s.state = 'closed'`])}
+		WHERE ${and([...sampleWhere('s'), sql`s.state = 'closed'`, f.source && sql`s.source = ${f.source}`])}
 		GROUP BY s.id`;
 	// A per-type chart keeps history samples that were counted by type (0 where the type is absent).
 	const history = sql`
@@ -77,7 +79,7 @@ export async function rollup(orgId: string, partId: string, f: ChartFilters, per
 		GROUP BY h.sample_key
 		${f.type ? sql`HAVING bool_or(h.defect_type_id IS NOT NULL)` : sql``}`;
 	const query =
-		f.zone || f.region
+		f.zone || f.region || f.source
 			? sql`${bench} ORDER BY taken_at, sample`
 			: sql`${bench} UNION ALL ${history} ORDER BY taken_at, sample`;
 	const rows = await db().execute<{

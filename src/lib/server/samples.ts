@@ -467,7 +467,7 @@ export async function countsByType(sampleId: string) {
  * A closed sample is news: live charts redraw, and signals are looked for in the background. The
  * close itself is already stored; if either fails it is logged, and the next close looks again.
  */
-async function afterClose(orgId: string, partId: string, sampleId: string) {
+export async function afterClose(orgId: string, partId: string, sampleId: string) {
 	try {
 		await publish({ type: 'sample.closed', orgId, partId, sampleId });
 		await enqueueEvaluation(orgId, partId);

@@ -4,7 +4,7 @@ import { and, asc, desc, eq, gt, ne, sql } from 'drizzle-orm';
 import type { Role } from '$lib/roles';
 import { auth } from './auth';
 import { db } from './db';
-import { invitation, member, organization, user } from './db/schema';
+import { digestSubscription, invitation, member, organization, user } from './db/schema';
 import { audit } from './audit';
 import { DomainError, notFound } from './errors';
 import { fromAuthError, type Caller } from './accounts';
@@ -98,6 +98,10 @@ export async function changeRole(access: Access, memberId: string, role: Role) {
 export async function removeMember(access: Access, memberId: string) {
 	await changeMembership(access, memberId, 'remove', async (tx, target) => {
 		await tx.delete(member).where(eq(member.id, memberId));
+		// Their digests of this organisation's parts stop with the membership.
+		await tx
+			.delete(digestSubscription)
+			.where(and(eq(digestSubscription.organizationId, access.org.id), eq(digestSubscription.userId, target.userId)));
 		await audit(tx, access, {
 			action: 'member.remove',
 			subject: 'member',

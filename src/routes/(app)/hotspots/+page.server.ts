@@ -60,6 +60,7 @@ export const load = (async (event) => {
 		tool: query.tool ?? '',
 		cavity: query.cavity === undefined ? '' : String(query.cavity),
 		shift: query.shift ?? '',
+		source: query.source ?? '',
 		inspector: query.inspector ?? '',
 		from: query.from ?? '',
 		to: query.to ?? '',
@@ -84,7 +85,7 @@ export const load = (async (event) => {
 	const { revisionId: _r, viewId: _v, clusterPoints: _c, ...zoneData } = zones;
 	const filtered =
 		(query.type?.length ?? 0) > 0 ||
-		!!(query.tool || query.cavity || query.shift || query.inspector || query.from || query.to);
+		!!(query.tool || query.cavity || query.shift || query.inspector || query.source || query.from || query.to);
 	return {
 		parts,
 		part,

@@ -95,6 +95,7 @@ export const load = (async (event) => {
 			tool: query.tool ?? '',
 			cavity: query.cavity === undefined ? '' : String(query.cavity),
 			shift: query.shift ?? '',
+			source: query.source ?? '',
 			from: query.from ?? '',
 			to: query.to ?? '',
 			limitSet: problem ? '' : (query.limitSet ?? '')

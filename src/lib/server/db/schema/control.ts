@@ -61,6 +61,8 @@ export interface ChartFilters {
 	tool?: string;
 	cavity?: number;
 	shift?: string;
+	/** Who found the defects: the Bench or a machine station (history drops out when set). */
+	source?: 'bench' | 'station';
 }
 
 export interface Exclusion {

@@ -1,0 +1,88 @@
+import { expect, test } from '@playwright/test';
+import { randomUUID } from 'node:crypto';
+import fs from 'node:fs';
+import { demo } from './demo-api';
+import { shoot, signIn } from './helpers';
+
+test('an engineer reads the report of FW-118 and downloads it as a PDF, and the pins as CSV from Trends', async ({
+	page
+}) => {
+	await page.setViewportSize({ width: 1280, height: 900 });
+	await signIn(page, 'engineer@example.com');
+	await page.getByRole('link', { name: 'Reports', exact: true }).first().click();
+	await expect(page.getByRole('heading', { name: 'Reports', level: 1 })).toBeVisible();
+	const part = page.getByLabel('Part', { exact: true });
+	const partId = await part.locator('option', { hasText: 'FW-118' }).getAttribute('value');
+	if ((await part.inputValue()) !== partId) {
+		await part.selectOption(partId!);
+		await expect(page).toHaveURL(new RegExp(`part=${partId}`));
+	}
+	await expect(page.getByRole('heading', { name: /FW-118 · Vent grille cover/, level: 1 })).toBeVisible();
+	await expect(page.locator('svg').first()).toBeVisible();
+	await expect(page.getByText(/support, and do not replace/).first()).toBeVisible();
+	await shoot(page, 'report-page');
+
+	const [pdf] = await Promise.all([
+		page.waitForEvent('download'),
+		page.getByRole('link', { name: 'Download PDF' }).click()
+	]);
+	expect(pdf.suggestedFilename()).toMatch(/^stipple-report-FW-118-\d{4}-\d{2}-\d{2}-\d{4}-\d{2}-\d{2}\.pdf$/);
+	const bytes = fs.readFileSync((await pdf.path())!);
+	expect(bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+	expect(bytes.length).toBeGreaterThan(20_000);
+
+	await page.goto(`/trends?part=${partId}`);
+	const [csv] = await Promise.all([
+		page.waitForEvent('download'),
+		page.getByRole('link', { name: 'Pins (CSV)' }).click()
+	]);
+	const text = fs.readFileSync((await csv.path())!, 'utf8');
+	const [header, first] = text.split(/\r?\n/);
+	expect(header).toBe(
+		'sample,unit,view,revision,type,type_name,x,y,zone,regions,inspector,source,time,sample_taken_at'
+	);
+	expect(first).toMatch(/^[0-9a-f-]{36},\d+,/);
+});
+
+test('an admin makes a station key, the station posts a sample with it, and a revoked key is refused', async ({
+	page
+}) => {
+	await page.setViewportSize({ width: 1280, height: 900 });
+	await signIn(page, 'admin@example.com');
+	await page.goto('/setup/stations');
+	await page.getByLabel('Station name').fill('Camera, line 2');
+	await page.getByRole('checkbox', { name: /FW-118/ }).check();
+	await page.getByRole('button', { name: 'Make the key' }).click();
+	const secret = await page.getByLabel('Station key').inputValue();
+	expect(secret).toMatch(/^stk_/);
+	await expect(page.getByText('It will not be shown again')).toBeVisible();
+	await shoot(page, 'stations-key-made');
+
+	const d = await demo(page.request);
+	const { views } = await (await page.request.get(`/api/v1/parts/${d.partId}/views`)).json();
+	const front = (views as { id: string; name: string }[]).find((v) => v.name === 'Front')!;
+	const body = {
+		id: randomUUID(),
+		partId: d.partId,
+		size: 5,
+		pins: [{ id: randomUUID(), unitIndex: 2, viewId: front.id, defectType: 'SK', x: 0.42, y: 0.61 }]
+	};
+	const post = () =>
+		page.request.post('/api/v1/station/samples', {
+			headers: { authorization: `Bearer ${secret}`, cookie: '' },
+			data: body
+		});
+	const first = await post();
+	expect(first.status(), await first.text()).toBe(201);
+	expect((await post()).status()).toBe(200);
+
+	await page.reload();
+	const card = page.locator('[id^="key-"]', { hasText: 'Camera, line 2' });
+	await expect(card).not.toContainText('never');
+	await card.getByRole('link', { name: 'Revoke…' }).click();
+	await page.getByRole('button', { name: 'Revoke the key' }).click();
+	await expect(page.locator('[id^="key-"]', { hasText: 'Camera, line 2' })).toContainText(/revoked/i);
+	const refused = await post();
+	expect(refused.status()).toBe(401);
+	await shoot(page, 'stations-revoked');
+});
