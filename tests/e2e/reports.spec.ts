@@ -10,7 +10,7 @@ test('an engineer reads the report of FW-118 and downloads it as a PDF, and the 
 	await page.setViewportSize({ width: 1280, height: 900 });
 	await signIn(page, 'engineer@example.com');
 	await page.getByRole('link', { name: 'Reports', exact: true }).first().click();
-	await expect(page.getByRole('heading', { name: 'Reports', level: 1 })).toBeVisible();
+	await expect(page).toHaveURL(/\/reports/);
 	const part = page.getByLabel('Part', { exact: true });
 	const partId = await part.locator('option', { hasText: 'FW-118' }).getAttribute('value');
 	if ((await part.inputValue()) !== partId) {
@@ -53,7 +53,7 @@ test('an admin makes a station key, the station posts a sample with it, and a re
 	await page.getByLabel('Station name').fill('Camera, line 2');
 	await page.getByRole('checkbox', { name: /FW-118/ }).check();
 	await page.getByRole('button', { name: 'Make the key' }).click();
-	const secret = await page.getByLabel('Station key').inputValue();
+	const secret = await page.getByLabel('Station key', { exact: true }).inputValue();
 	expect(secret).toMatch(/^stk_/);
 	await expect(page.getByText('It will not be shown again')).toBeVisible();
 	await shoot(page, 'stations-key-made');
@@ -85,4 +85,19 @@ test('an admin makes a station key, the station posts a sample with it, and a re
 	const refused = await post();
 	expect(refused.status()).toBe(401);
 	await shoot(page, 'stations-revoked');
+});
+
+test('the API page reads signed out, from the same description as openapi.json', async ({ page }) => {
+	await page.setViewportSize({ width: 1280, height: 900 });
+	await page.goto('/api-docs');
+	await expect(page.getByRole('heading', { name: /Stipple API/, level: 1 })).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'A station posts a sample' })).toBeVisible();
+	await expect(page.getByText('Authorization: Bearer stk_').first()).toBeVisible();
+	const spec = await (await page.request.get('/api/v1/openapi.json')).json();
+	const operations = Object.values(spec.paths as Record<string, object>).reduce(
+		(n, item) => n + Object.keys(item).length,
+		0
+	);
+	await expect(page.getByText(`${operations} operations`)).toBeVisible();
+	await shoot(page, 'api-docs');
 });

@@ -78,10 +78,10 @@ test('is usable from the keyboard: skip link first, then the screens', async ({ 
 
 test('each role sees its own screens', async ({ browser }) => {
 	const expected: Record<string, string[]> = {
-		'engineer@example.com': ['Bench', 'Trends', 'Hot spots', 'Repairs', 'Signals', 'Setup'],
+		'engineer@example.com': ['Bench', 'Trends', 'Hot spots', 'Repairs', 'Reports', 'Signals', 'Setup'],
 		'inspector@example.com': ['Bench', 'Setup'],
-		'toolmaker@example.com': ['Trends', 'Hot spots', 'Repairs', 'Setup'],
-		'viewer@example.com': ['Trends', 'Hot spots', 'Repairs', 'Setup']
+		'toolmaker@example.com': ['Trends', 'Hot spots', 'Repairs', 'Reports', 'Setup'],
+		'viewer@example.com': ['Trends', 'Hot spots', 'Repairs', 'Reports', 'Setup']
 	};
 	for (const [email, screens] of Object.entries(expected)) {
 		const ctx = await browser.newContext();
