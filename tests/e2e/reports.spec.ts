@@ -76,7 +76,43 @@ test('an admin makes a station key, the station posts a sample with it, and a re
 	expect(first.status(), await first.text()).toBe(201);
 	expect((await post()).status()).toBe(200);
 
-	await page.reload();
+	// The Front view's frame mapping, set by clicking three points on the drawing and typing the station's pixels.
+	await page.goto('/setup/stations');
+	await page.getByRole('link', { name: 'Set the mapping' }).first().click();
+	const drawing = page.getByRole('button', { name: /on the drawing$/ });
+	await expect(drawing.locator('img')).toBeVisible();
+	const box = (await drawing.boundingBox())!;
+	const spots = [
+		[0.2, 0.2, 200, 200],
+		[0.8, 0.2, 800, 200],
+		[0.2, 0.8, 200, 800]
+	] as const;
+	for (const [x, y] of spots) await page.mouse.click(box.x + x * box.width, box.y + y * box.height);
+	for (const [i, [, , fx, fy]] of spots.entries()) {
+		await page.getByLabel('Image x, px').nth(i).fill(String(fx));
+		await page.getByLabel('Image y, px').nth(i).fill(String(fy));
+	}
+	await page.getByRole('radio', { name: /Affine/ }).check();
+	await shoot(page, 'stations-mapping');
+	await page.getByRole('button', { name: 'Save the mapping' }).click();
+	await expect(page.getByText(/^Saved\./)).toBeVisible();
+
+	// A pin sent in the station's pixels lands mid-drawing: (500, 500) px → about (0.5, 0.5).
+	const mapped = await page.request.post('/api/v1/station/samples', {
+		headers: { authorization: `Bearer ${secret}`, cookie: '' },
+		data: {
+			id: randomUUID(),
+			partId: d.partId,
+			size: 5,
+			pins: [{ id: randomUUID(), unitIndex: 1, viewId: front.id, defectType: 'SK', frame: { x: 500, y: 500 } }]
+		}
+	});
+	expect(mapped.status(), await mapped.text()).toBe(201);
+	const stored = await (await page.request.get(`/api/v1/samples/${(await mapped.json()).sample.id}`)).json();
+	expect(stored.sample.pins[0].x).toBeCloseTo(0.5, 1);
+	expect(stored.sample.pins[0].y).toBeCloseTo(0.5, 1);
+
+	await page.goto('/setup/stations');
 	const card = page.locator('[id^="key-"]', { hasText: 'Camera, line 2' });
 	await expect(card).not.toContainText('never');
 	await card.getByRole('link', { name: 'Revoke…' }).click();
