@@ -83,7 +83,19 @@ const look: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(look, apiErrors, identify);
+/**
+ * better-auth's own HTTP endpoints stay closed: Stipple calls better-auth on the server only, through
+ * its own verbs with its own role rules and brakes. Open, /api/auth/* would list every member to any
+ * member, take role names Stipple does not have, sign in without the per-account brake, and hand
+ * session tokens to scripts.
+ */
+const authGate: Handle = async ({ event, resolve }) => {
+	if (event.url.pathname === '/api/auth' || event.url.pathname.startsWith('/api/auth/'))
+		return jsonError(404, 'There is no such endpoint.');
+	return resolve(event);
+};
+
+export const handle = sequence(look, authGate, apiErrors, identify);
 
 export const handleError: HandleServerError = ({ error, event, status }) => {
 	if (status >= 500) console.error(`[stipple] ${event.request.method} ${event.url.pathname}`, error);

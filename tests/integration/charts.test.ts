@@ -201,7 +201,7 @@ describe('limit sets and signals', () => {
 		expect(stored).toEqual([{ rule: 'beyond-limit', sample: s.id }]);
 		// Looking again finds nothing new: a violation becomes a signal once.
 		expect(await evaluateSignals(p.access.org.id, p.part.id)).toEqual([]);
-		const mails = (await listCaughtMail(500)).filter(
+		const mails = (await listCaughtMail(p.access.org.id, 500)).filter(
 			(m) => m.recipients.includes(engineerUser.email) && m.subject.includes('signal')
 		);
 		expect(mails).toHaveLength(1);

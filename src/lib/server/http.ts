@@ -1,5 +1,5 @@
 /** Turning requests into typed input and domain errors into 4xx answers. */
-import { fail, json } from '@sveltejs/kit';
+import { error, fail, json } from '@sveltejs/kit';
 import type { z } from 'zod';
 import { issuesOf, type Issues } from '$lib/schemas/common';
 import { DomainError } from './errors';
@@ -134,4 +134,19 @@ export async function readUpload(request: Request, maxBytes = IMAGE_LIMITS.maxBy
 		chunks.push(value);
 	}
 	return Buffer.concat(chunks);
+}
+
+/**
+ * Wraps a page's load: a DomainError (another organisation's object is "not found") becomes the
+ * error page with its own status and words, not a 500.
+ */
+export function pageLoad<E, R>(load: (event: E) => Promise<R>): (event: E) => Promise<R> {
+	return async (event) => {
+		try {
+			return await load(event);
+		} catch (e) {
+			if (e instanceof DomainError) error(e.status, e.message);
+			throw e;
+		}
+	};
 }

@@ -55,8 +55,21 @@ export function mailCatcherActive() {
 	return process.env.STIPPLE_MAIL_CATCHER === '1';
 }
 
-export async function listCaughtMail(limit = 100) {
-	return db().select().from(caughtMail).orderBy(desc(caughtMail.receivedAt)).limit(limit);
+/**
+ * The newest mail to the people of one organisation (its members and those it invited). The catcher
+ * holds every organisation's mail, reset links included: an admin sees only their own people's.
+ */
+export async function listCaughtMail(orgId: string, limit = 100) {
+	return db()
+		.select()
+		.from(caughtMail)
+		.where(
+			sql`${caughtMail.recipients} && ARRAY(
+				SELECT lower(u.email) FROM member m JOIN "user" u ON u.id = m.user_id WHERE m.organization_id = ${orgId}
+				UNION SELECT lower(i.email) FROM invitation i WHERE i.organization_id = ${orgId})`
+		)
+		.orderBy(desc(caughtMail.receivedAt))
+		.limit(limit);
 }
 
 /** The newest message to `address`, for tests and the Mailbox page. */

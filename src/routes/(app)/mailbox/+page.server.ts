@@ -5,9 +5,9 @@ import type { PageServerLoad } from './$types';
 
 // Only while Stipple catches its own mail (no SMTP_URL): with real SMTP the page does not exist.
 export const load = (async (event) => {
-	requireRole(event, 'admin');
+	const { org } = requireRole(event, 'admin');
 	if (!mailCatcherActive()) error(404, 'Mail goes out through SMTP; there is no local mailbox.');
-	const mail = await listCaughtMail(100);
+	const mail = await listCaughtMail(org.id, 100);
 	return {
 		mail: mail.map(({ id, recipients, subject, text, receivedAt }) => ({ id, recipients, subject, text, receivedAt }))
 	};

@@ -1,4 +1,5 @@
 import { requireRole } from '$lib/server/access';
+import { pageLoad } from '$lib/server/http';
 import { typesForPart } from '$lib/server/defects';
 import { listViews } from '$lib/server/drawings';
 import { getPart } from '$lib/server/parts';
@@ -6,7 +7,7 @@ import { getPlan } from '$lib/server/plans';
 import { getSample } from '$lib/server/samples';
 import type { PageServerLoad } from './$types';
 
-export const load = (async (event) => {
+export const load = pageLoad(async (event) => {
 	const access = requireRole(event, 'inspector', 'engineer');
 	const sample = await getSample(access.org.id, event.params.sampleId);
 	const [part, views, types, plan] = await Promise.all([

@@ -2,12 +2,12 @@ import { gridSchema } from '$lib/schemas/drawing';
 import { requireRole } from '$lib/server/access';
 import { historyOf } from '$lib/server/audit';
 import { getRevision, setGrid } from '$lib/server/drawings';
-import { act } from '$lib/server/http';
+import { act, pageLoad } from '$lib/server/http';
 import { getPart } from '$lib/server/parts';
 import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load = (async (event) => {
+export const load = pageLoad(async (event) => {
 	const { org, role } = requireRole(event, 'engineer', 'inspector', 'toolmaker', 'viewer');
 	const revision = await getRevision(org.id, event.params.revisionId);
 	const [part, history] = await Promise.all([

@@ -4,13 +4,13 @@ import { requireRole } from '$lib/server/access';
 import { historyOf } from '$lib/server/audit';
 import { typesForPart } from '$lib/server/defects';
 import { createView, listViews } from '$lib/server/drawings';
-import { act } from '$lib/server/http';
+import { act, pageLoad } from '$lib/server/http';
 import { getPart, updatePart } from '$lib/server/parts';
 import { getPlan, setPlan } from '$lib/server/plans';
 import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load = (async (event) => {
+export const load = pageLoad(async (event) => {
 	const { org, role } = requireRole(event, 'engineer', 'inspector', 'toolmaker', 'viewer');
 	const { partId } = event.params;
 	const part = await getPart(org.id, partId);

@@ -1,4 +1,5 @@
 import { requireRole } from '$lib/server/access';
+import { pageLoad } from '$lib/server/http';
 import { listTools } from '$lib/server/catalogue';
 import { listDefectTypes, typesForPart } from '$lib/server/defects';
 import { listViews } from '$lib/server/drawings';
@@ -6,7 +7,7 @@ import { getPart } from '$lib/server/parts';
 import { countsByType, getSample } from '$lib/server/samples';
 import type { PageServerLoad } from './$types';
 
-export const load = (async (event) => {
+export const load = pageLoad(async (event) => {
 	const { org } = requireRole(event, 'engineer', 'toolmaker', 'viewer');
 	const sample = await getSample(org.id, event.params.sampleId);
 	const [part, views, partTypes, allTypes, counts, tools] = await Promise.all([

@@ -1,10 +1,10 @@
 import { frameMappingFormSchema } from '$lib/schemas/station';
 import { requireRole } from '$lib/server/access';
-import { act } from '$lib/server/http';
+import { act, pageLoad } from '$lib/server/http';
 import { getFrameMapping, setFrameMapping } from '$lib/server/stations';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load = (async (event) => {
+export const load = pageLoad(async (event) => {
 	const { org } = requireRole(event, 'engineer');
 	const { view, mapping } = await getFrameMapping(org.id, event.params.viewId);
 	return {
