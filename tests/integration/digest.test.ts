@@ -7,19 +7,14 @@ import { digestSettingsSchema } from '../../src/lib/schemas/settings';
 import { chartKeyOf } from '../../src/lib/server/charts';
 import { db } from '../../src/lib/server/db';
 import { caughtMail, limitSet, pin, sample, signal } from '../../src/lib/server/db/schema';
-import { createDefectType } from '../../src/lib/server/defects';
 import { digestFor, myDigests, sendDigests, setDigests, weekEndingOf } from '../../src/lib/server/digest';
-import { addRevision, createView, setGrid } from '../../src/lib/server/drawings';
-import { createOrganisation } from '../../src/lib/server/orgs';
 import { createPart } from '../../src/lib/server/parts';
 import { DIGEST_CRON, QUEUES, startJobs } from '../../src/lib/server/jobs';
 import { createRepair } from '../../src/lib/server/repairs';
-import { acceptInvitation, invite, listMembers, removeMember } from '../../src/lib/server/team';
-import { createTool } from '../../src/lib/server/tools';
+import { listMembers, removeMember } from '../../src/lib/server/team';
 import { DECISION_CAUTION } from '../../src/lib/spc/rates';
-import type { Role } from '../../src/lib/roles';
-import { good } from '../fixtures/images';
-import { accessFor, expectDomainError, newUser } from './helpers';
+import { newPlant } from './plant';
+import { expectDomainError } from './helpers';
 
 const HOUR = 3600 * 1000;
 /** A Monday: the digest covers Monday 23 Feb to Sunday 1 Mar 2026, UTC. */
@@ -27,38 +22,10 @@ const WEEK_ENDING = new Date('2026-03-02T00:00:00Z');
 const at = (iso: string) => new Date(iso);
 
 async function plant(label: string) {
-	const admin = await newUser(label);
-	await createOrganisation(admin.caller, { name: `${label} Works` });
-	const access = await accessFor(admin.headers);
-	const part = await createPart(access, { number: `D-${label}`, name: 'Cover', material: '', process: '', notes: '' });
-	const view = await createView(access, part.id, 'Front');
-	const rev = await addRevision(access, view.id, await good.webp());
 	// Six zones: A1 A2 A3 on the top row, B1 B2 B3 below.
-	await setGrid(access, rev.id, { columns: 3, rows: 2 });
-	const mould = await createTool(access, {
-		code: 'M7',
-		name: 'Cover mould',
-		kind: 'mould',
-		cavityCount: 2,
-		partIds: [part.id]
-	});
-	const type = await createDefectType(access, {
-		code: `S${label.length}`,
-		name: 'Sink mark',
-		description: '',
-		colour: 'rust',
-		shape: 'dot',
-		severity: 'C',
-		allParts: true,
-		partIds: []
-	});
-	const member = async (role: Role) => {
-		const u = await newUser(`${role}-${randomUUID().slice(0, 4)}`);
-		const inv = await invite(access, admin.caller, { email: u.email, role });
-		await acceptInvitation(u.caller, u.email, inv.id);
-		return { email: u.email, access: await accessFor(u.headers) };
-	};
-	return { admin, access, part, view, rev, mould, type, member };
+	const p = await newPlant(label, { partNumber: `D-${label}`, grid: { columns: 3, rows: 2 } });
+	const type = await p.defectType(`S${label.length}`, 'Sink mark', { colour: 'rust' });
+	return { ...p, type };
 }
 
 type Plant = Awaited<ReturnType<typeof plant>>;

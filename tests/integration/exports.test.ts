@@ -15,68 +15,31 @@ import type { Access } from '../../src/lib/server/access';
 import { chartFor, chartKeyOf, filtersOf } from '../../src/lib/server/charts';
 import { db } from '../../src/lib/server/db';
 import { historyCount, historyImport, pin, sample } from '../../src/lib/server/db/schema';
-import { createDefectType } from '../../src/lib/server/defects';
 import { binView } from '../../src/lib/server/density';
-import { addRevision, createView, setGrid } from '../../src/lib/server/drawings';
 import { csvLines, PIN_COLUMNS, SAMPLE_COLUMNS } from '../../src/lib/server/exports';
-import { createOrganisation } from '../../src/lib/server/orgs';
 import { paretoFor } from '../../src/lib/server/pareto';
-import { createPart } from '../../src/lib/server/parts';
-import { acceptInvitation, invite } from '../../src/lib/server/team';
-import { createTool } from '../../src/lib/server/tools';
 import type { Role } from '../../src/lib/roles';
 import { GET as chartCsvGet } from '../../src/routes/api/v1/parts/[partId=uuid]/chart.csv/+server';
 import { GET as pinsCsvGet } from '../../src/routes/api/v1/parts/[partId=uuid]/pins.csv/+server';
 import { GET as samplesCsvGet } from '../../src/routes/api/v1/parts/[partId=uuid]/samples.csv/+server';
-import { good } from '../fixtures/images';
-import { accessFor, newUser } from './helpers';
+import { newPlant } from './plant';
 
 const ISO = /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/;
 const HYPERLINK = '=HYPERLINK("http://x.test","go")';
 
 async function plant(label: string, inspectorName = `${label} inspector`) {
-	const admin = await newUser(label, inspectorName);
-	await createOrganisation(admin.caller, { name: `${label} Works` });
-	const access = await accessFor(admin.headers);
-	const part = await createPart(access, {
-		number: `X-${label}`,
-		name: 'Bracket',
-		material: '',
-		process: '',
-		notes: ''
+	const p = await newPlant(label, {
+		partNumber: `X-${label}`,
+		partName: 'Bracket',
+		mould: { code: 'M1', name: 'Bracket mould' },
+		adminName: inspectorName
 	});
-	const view = await createView(access, part.id, 'Front');
-	const rev = await addRevision(access, view.id, await good.webp());
-	await setGrid(access, rev.id, { columns: 2, rows: 1 });
-	const mould = await createTool(access, {
-		code: 'M1',
-		name: 'Bracket mould',
-		kind: 'mould',
-		cavityCount: 2,
-		partIds: [part.id]
-	});
-	const type = (code: string, name: string) =>
-		createDefectType(access, {
-			code,
-			name,
-			description: '',
-			colour: 'sky',
-			shape: 'dot',
-			severity: 'C',
-			allParts: true,
-			partIds: []
-		});
 	// SK's name would run as a formula in a spreadsheet; DT applies to the part but is never pinned.
-	const sk = await type('SK', HYPERLINK);
-	const fl = await type('FL', 'Flash');
-	const dt = await type('DT', 'Dent');
-	const member = async (role: Role) => {
-		const u = await newUser(`${role}-${randomUUID().slice(0, 4)}`);
-		const inv = await invite(access, admin.caller, { email: u.email, role });
-		await acceptInvitation(u.caller, u.email, inv.id);
-		return accessFor(u.headers);
-	};
-	return { access, part, view, rev, mould, sk, fl, dt, member };
+	const sk = await p.defectType('SK', HYPERLINK);
+	const fl = await p.defectType('FL', 'Flash');
+	const dt = await p.defectType('DT', 'Dent');
+	const member = async (role: Role) => (await p.member(role)).access;
+	return { ...p, sk, fl, dt, member };
 }
 
 type Plant = Awaited<ReturnType<typeof plant>>;

@@ -6,10 +6,6 @@ import { repairSchema } from '../../src/lib/schemas/repair';
 import type { Access } from '../../src/lib/server/access';
 import { db } from '../../src/lib/server/db';
 import { pin, sample } from '../../src/lib/server/db/schema';
-import { createDefectType } from '../../src/lib/server/defects';
-import { addRevision, createView, setGrid } from '../../src/lib/server/drawings';
-import { createOrganisation } from '../../src/lib/server/orgs';
-import { createPart } from '../../src/lib/server/parts';
 import {
 	actOnRepair,
 	addRepairPhoto,
@@ -23,46 +19,24 @@ import {
 } from '../../src/lib/server/repairs';
 import { publish, subscribe, type LiveEvent } from '../../src/lib/server/live';
 import { listKeys } from '../../src/lib/server/storage';
-import { acceptInvitation, invite } from '../../src/lib/server/team';
-import { createTool } from '../../src/lib/server/tools';
-import type { Role } from '../../src/lib/roles';
 import { bad, good, pixelBomb } from '../fixtures/images';
-import { accessFor, expectDomainError, mailTo, newUser } from './helpers';
+import { newPlant } from './plant';
+import { expectDomainError, mailTo } from './helpers';
 
 const DAY = 24 * 3600 * 1000;
 
 async function plant(label: string) {
-	const admin = await newUser(label);
-	await createOrganisation(admin.caller, { name: `${label} Works` });
-	const access = await accessFor(admin.headers);
-	const part = await createPart(access, { number: `R-${label}`, name: 'Lid', material: '', process: '', notes: '' });
-	const view = await createView(access, part.id, 'Front');
-	const rev = await addRevision(access, view.id, await good.webp());
-	await setGrid(access, rev.id, { columns: 2, rows: 1 });
-	const mould = await createTool(access, {
-		code: 'M2',
-		name: 'Lid mould',
-		kind: 'mould',
-		cavityCount: 2,
-		partIds: [part.id]
+	const p = await newPlant(label, {
+		partNumber: `R-${label}`,
+		partName: 'Lid',
+		mould: { code: 'M2', name: 'Lid mould' }
 	});
-	const type = await createDefectType(access, {
-		code: `K${label.length}`,
-		name: 'Short shot',
-		description: '',
+	const type = await p.defectType(`K${label.length}`, 'Short shot', {
 		colour: 'rust',
 		shape: 'triangle',
-		severity: 'B',
-		allParts: true,
-		partIds: []
+		severity: 'B'
 	});
-	const member = async (role: Role) => {
-		const u = await newUser(`${role}-${randomUUID().slice(0, 4)}`);
-		const inv = await invite(access, admin.caller, { email: u.email, role });
-		await acceptInvitation(u.caller, u.email, inv.id);
-		return { email: u.email, access: await accessFor(u.headers) };
-	};
-	return { access, part, view, rev, mould, type, member };
+	return { ...p, type };
 }
 
 type Plant = Awaited<ReturnType<typeof plant>>;

@@ -14,24 +14,17 @@ import { reportPeriod, reportQuerySchema } from '../../src/lib/schemas/report';
 import type { Access } from '../../src/lib/server/access';
 import { db } from '../../src/lib/server/db';
 import { pin, sample, sampleUnit } from '../../src/lib/server/db/schema';
-import { createDefectType } from '../../src/lib/server/defects';
-import { addRevision, createView, setGrid } from '../../src/lib/server/drawings';
 import { createLimitSet, freezeLimitSet } from '../../src/lib/server/limits';
-import { createOrganisation } from '../../src/lib/server/orgs';
-import { createPart } from '../../src/lib/server/parts';
 import { setPlan } from '../../src/lib/server/plans';
 import { actOnRepair, createRepair } from '../../src/lib/server/repairs';
 import { reportFor } from '../../src/lib/server/report';
 import { pdfText } from '../../src/lib/server/report-pdf';
 import { actOnSignal, evaluateSignals, listSignals } from '../../src/lib/server/signals';
-import { acceptInvitation, invite } from '../../src/lib/server/team';
-import { createTool } from '../../src/lib/server/tools';
 import { GET } from '../../src/routes/api/v1/parts/[partId=uuid]/report.pdf/+server';
 import { load } from '../../src/routes/(app)/reports/+page.server';
 import ReportsPage from '../../src/routes/(app)/reports/+page.svelte';
 import type { Role } from '../../src/lib/roles';
-import { good } from '../fixtures/images';
-import { accessFor, newUser } from './helpers';
+import { newPlant } from './plant';
 
 // Montgomery, Introduction to Statistical Quality Control, personal computer final assembly:
 // nonconformities in 20 samples of 5 units, Σc = 193, ū = 193 / 100 = 1.93 (also in charts.test.ts).
@@ -40,34 +33,11 @@ const DAY = 24 * 3600 * 1000;
 const T0 = Date.parse('2026-01-05T06:00:00Z');
 
 async function plant(label: string) {
-	const admin = await newUser(label, `Admin ${label}`);
-	await createOrganisation(admin.caller, { name: `${label} Works` });
-	const access = await accessFor(admin.headers);
-	const part = await createPart(access, { number: `RP-${label}`, name: 'Cover', material: '', process: '', notes: '' });
-	const view = await createView(access, part.id, 'Front');
-	const rev = await addRevision(access, view.id, await good.webp());
-	await setGrid(access, rev.id, { columns: 2, rows: 1 });
-	const mould = await createTool(access, {
-		code: 'M7',
-		name: 'Cover mould',
-		kind: 'mould',
-		cavityCount: 2,
-		partIds: [part.id]
-	});
-	const type = (code: string, name: string) =>
-		createDefectType(access, {
-			code,
-			name,
-			description: '',
-			colour: 'sky',
-			shape: 'dot',
-			severity: 'C',
-			allParts: true,
-			partIds: []
-		});
-	const scratch = await type(`S${label.length}`, 'Scratch');
-	const dent = await type(`D${label.length}`, 'Dent');
-	const flash = await type(`F${label.length}`, 'Flash');
+	const p = await newPlant(label, { partNumber: `RP-${label}`, adminName: `Admin ${label}` });
+	const { access, part } = p;
+	const scratch = await p.defectType(`S${label.length}`, 'Scratch');
+	const dent = await p.defectType(`D${label.length}`, 'Dent');
+	const flash = await p.defectType(`F${label.length}`, 'Flash');
 	await setPlan(access, part.id, {
 		basis: 'units',
 		sampleSize: 5,
@@ -78,13 +48,8 @@ async function plant(label: string) {
 		photoForSevere: false,
 		sharedSamples: false
 	});
-	const member = async (role: Role) => {
-		const u = await newUser(`${role}-${randomUUID().slice(0, 4)}`);
-		const inv = await invite(access, admin.caller, { email: u.email, role });
-		await acceptInvitation(u.caller, u.email, inv.id);
-		return accessFor(u.headers);
-	};
-	return { access, part, view, rev, mould, scratch, dent, flash, member };
+	const member = async (role: Role) => (await p.member(role)).access;
+	return { ...p, scratch, dent, flash, member };
 }
 
 type Plant = Awaited<ReturnType<typeof plant>>;
