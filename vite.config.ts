@@ -30,6 +30,15 @@ export default defineConfig({
 					testTimeout: 30_000,
 					hookTimeout: 60_000
 				}
+			},
+			{
+				extends: './vite.config.ts',
+				test: {
+					name: 'load',
+					environment: 'node',
+					include: ['tests/load/**/*.test.ts'],
+					fileParallelism: false
+				}
 			}
 		]
 	}

@@ -1,9 +1,10 @@
 import { building } from '$app/environment';
-import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import type { Handle, HandleServerError, RequestEvent, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { svelteKitHandler } from 'better-auth/svelte-kit';
 import { auth } from '$lib/server/auth';
-import { CODE_FOR_STATUS, jsonError } from '$lib/server/http';
+import { isDatabaseUnavailable } from '$lib/server/db';
+import { CODE_FOR_STATUS, jsonError, unavailable } from '$lib/server/http';
 import { recall, remember } from '$lib/server/session-memo';
 import { resolveContext } from '$lib/server/orgs';
 import { startServices } from '$lib/server/services';
@@ -12,31 +13,43 @@ export const init: ServerInit = async () => {
 	if (!building) await startServices();
 };
 
-/** Who is asking: user, session, organisation and role, from better-auth's signed cookie. */
+/** The signed-in user, session, organisation and role of a cookie, or null. */
+async function lookUp(event: RequestEvent, cookie: string) {
+	const found = await auth().api.getSession({ headers: event.request.headers });
+	if (!found) return null;
+	const { user, session } = found;
+	const ctx = await resolveContext(user.id, session.id, session.activeOrganizationId ?? null);
+	const identity = {
+		user: { id: user.id, name: user.name, email: user.email },
+		sessionId: session.id,
+		org: ctx.org,
+		role: ctx.role
+	};
+	// Only a plain page or API request: better-auth's own routes may change the session.
+	if (!event.url.pathname.startsWith('/api/auth')) remember(cookie, identity, session.expiresAt);
+	return identity;
+}
+
+/**
+ * Who is asking: user, session, organisation and role, from better-auth's signed cookie. While
+ * the database is down or restarting, every request that needs it answers 503.
+ */
 const identify: Handle = async ({ event, resolve }) => {
 	event.locals.user = null;
 	event.locals.sessionId = null;
 	event.locals.org = null;
 	event.locals.role = null;
 	const cookie = event.request.headers.get('cookie') ?? '';
-	const known = cookie ? recall(cookie) : null;
-	if (known) {
-		Object.assign(event.locals, known);
-	} else {
-		const found = await auth().api.getSession({ headers: event.request.headers });
-		if (found) {
-			const { user, session } = found;
-			const ctx = await resolveContext(user.id, session.id, session.activeOrganizationId ?? null);
-			const identity = {
-				user: { id: user.id, name: user.name, email: user.email },
-				sessionId: session.id,
-				org: ctx.org,
-				role: ctx.role
-			};
-			Object.assign(event.locals, identity);
-			// Only a plain page or API request: better-auth's own routes may change the session.
-			if (!event.url.pathname.startsWith('/api/auth')) remember(cookie, identity, session.expiresAt);
-		}
+	try {
+		const known = cookie ? (recall(cookie) ?? (await lookUp(event, cookie))) : null;
+		if (known) Object.assign(event.locals, known);
+	} catch (e) {
+		if (!isDatabaseUnavailable(e)) throw e;
+		if (event.url.pathname.startsWith('/api/')) return unavailable();
+		return new Response('Stipple cannot reach its database just now; try again in a moment.', {
+			status: 503,
+			headers: { 'content-type': 'text/plain; charset=utf-8', 'retry-after': '2' }
+		});
 	}
 	return svelteKitHandler({ event, resolve, auth: auth(), building });
 };

@@ -2,6 +2,7 @@
 import { error, fail, json } from '@sveltejs/kit';
 import type { z } from 'zod';
 import { issuesOf, type Issues } from '$lib/schemas/common';
+import { isDatabaseUnavailable } from './db';
 import { DomainError } from './errors';
 import { IMAGE_LIMITS } from './images';
 
@@ -19,8 +20,16 @@ export const CODE_FOR_STATUS: Record<number, string> = {
 	413: 'too_large',
 	415: 'unsupported_media_type',
 	422: 'invalid',
-	429: 'rate_limited'
+	429: 'rate_limited',
+	503: 'unavailable'
 };
+
+/** What a request gets while the database is down or restarting; nothing was written. */
+export function unavailable(): Response {
+	const response = jsonError(503, 'Stipple cannot reach its database just now; try again in a moment.');
+	response.headers.set('retry-after', '2');
+	return response;
+}
 
 export function jsonError(status: number, message: string, code?: string, issues?: Issues) {
 	const body: ErrorBody = {
@@ -58,6 +67,7 @@ export async function answer(fn: () => Promise<Response>): Promise<Response> {
 		return await fn();
 	} catch (e) {
 		if (e instanceof DomainError) return jsonError(e.status, e.message, e.code, e.issues);
+		if (isDatabaseUnavailable(e)) return unavailable();
 		throw e;
 	}
 }

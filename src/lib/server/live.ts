@@ -1,11 +1,16 @@
 /**
  * Live events between app processes, through PostgreSQL LISTEN / NOTIFY: a sample closed on one
- * process reaches a Trends page served by another. One LISTEN connection per process fans out to
- * every open event stream; postgres.js reconnects it by itself after a database restart, and the
- * streams are then told to catch up.
+ * process reaches a Trends page served by another. One LISTEN per process fans out to every open
+ * event stream.
+ *
+ * postgres.js listens again by itself after a lost connection, but only once: if the database is
+ * still starting, that attempt fails quietly and the process would hear nothing more. So each
+ * process also sends itself a heartbeat on the channel every second while anyone is listening;
+ * when its own heartbeats stop coming back, it listens afresh. Every new LISTEN after the first
+ * tells the streams to catch up (`resync`), since events may have been missed in between.
  */
+import { randomUUID } from 'node:crypto';
 import { EventEmitter } from 'node:events';
-import type postgres from 'postgres';
 import { sqlClient } from './db';
 
 export type LiveEvent =
@@ -16,36 +21,70 @@ export type LiveEvent =
 	| { type: 'repair.changed'; orgId: string; partId: string; repairId: string }
 	| { type: 'resync' };
 
+interface Heartbeat {
+	type: 'heartbeat';
+	from: string;
+}
+
 const CHANNEL = 'stipple_live';
+const HEARTBEAT_MS = 1_000;
+/** No heartbeat back for this long: the LISTEN is gone. */
+const DEAF_AFTER_MS = 3_500;
+const PROCESS = randomUUID();
+
 const bus = new EventEmitter();
 bus.setMaxListeners(0);
-let listeningOn: postgres.Sql | undefined;
 
-function ensureListening() {
-	const client = sqlClient();
-	if (listeningOn === client) return;
-	listeningOn = client;
-	let first = true;
-	client
-		.listen(
-			CHANNEL,
-			(payload) => {
-				try {
-					bus.emit('event', JSON.parse(payload) as LiveEvent);
-				} catch {
-					// Not ours; ignore.
-				}
-			},
-			() => {
-				// Called on every (re)connect: after the first, events may have been missed.
-				if (!first) bus.emit('event', { type: 'resync' } satisfies LiveEvent);
-				first = false;
-			}
-		)
-		.catch((e: unknown) => {
-			listeningOn = undefined;
+let listening: { unlisten: () => Promise<void> } | null = null;
+let starting: Promise<void> | null = null;
+let heard = 0;
+let listens = 0;
+let heartbeat: ReturnType<typeof setInterval> | null = null;
+
+function received(payload: string) {
+	let event: LiveEvent | Heartbeat;
+	try {
+		event = JSON.parse(payload) as LiveEvent | Heartbeat;
+	} catch {
+		return; // not ours
+	}
+	if (event.type === 'heartbeat') {
+		if (event.from === PROCESS) heard = Date.now();
+		return;
+	}
+	bus.emit('event', event);
+}
+
+function listen(): Promise<void> {
+	starting ??= (async () => {
+		try {
+			const previous = listening;
+			listening = null;
+			await previous?.unlisten().catch(() => {});
+			listening = await sqlClient().listen(CHANNEL, received, () => {
+				// Called on every (re)listen: after the first, events may have been missed.
+				heard = Date.now();
+				if (listens++ > 0) bus.emit('event', { type: 'resync' } satisfies LiveEvent);
+			});
+		} catch (e) {
 			console.error(`[stipple] live events: ${e instanceof Error ? e.message : String(e)}`);
-		});
+		} finally {
+			starting = null;
+		}
+	})();
+	return starting;
+}
+
+function beat() {
+	if (bus.listenerCount('event') === 0) return;
+	if (!listening || Date.now() - heard > DEAF_AFTER_MS) {
+		void listen();
+		return;
+	}
+	const ping: Heartbeat = { type: 'heartbeat', from: PROCESS };
+	sqlClient()
+		.notify(CHANNEL, JSON.stringify(ping))
+		.catch(() => {}); // the database is away; the next beat finds out
 }
 
 export async function publish(event: LiveEvent) {
@@ -53,7 +92,9 @@ export async function publish(event: LiveEvent) {
 }
 
 export function subscribe(listener: (event: LiveEvent) => void): () => void {
-	ensureListening();
+	if (!listening) void listen();
+	heartbeat ??= setInterval(beat, HEARTBEAT_MS);
+	heartbeat.unref?.();
 	bus.on('event', listener);
 	return () => bus.off('event', listener);
 }

@@ -66,12 +66,38 @@ export async function migrateDb() {
 	}
 }
 
+/** The error codes of `e` and its causes (Drizzle wraps postgres.js errors). */
+function codesOf(e: unknown): string[] {
+	const codes: string[] = [];
+	for (let cur: unknown = e; cur && typeof cur === 'object'; cur = (cur as { cause?: unknown }).cause) {
+		const code = (cur as { code?: unknown }).code;
+		if (typeof code === 'string') codes.push(code);
+	}
+	return codes;
+}
+
 /** PostgreSQL's unique_violation (23505), as postgres.js or Drizzle's wrapper reports it. */
 export function isUniqueViolation(e: unknown): boolean {
-	for (let cur: unknown = e; cur && typeof cur === 'object'; cur = (cur as { cause?: unknown }).cause) {
-		if ((cur as { code?: unknown }).code === '23505') return true;
-	}
-	return false;
+	return codesOf(e).includes('23505');
+}
+
+/** postgres.js's own codes for a lost or refused connection. */
+const LOST = new Set([
+	'CONNECTION_CLOSED',
+	'CONNECTION_ENDED',
+	'CONNECTION_DESTROYED',
+	'CONNECT_TIMEOUT',
+	'ECONNREFUSED',
+	'ECONNRESET'
+]);
+
+/**
+ * The database is down or restarting (not a fault of the request): a lost connection, SQLSTATE
+ * class 08 (connection exception), or 57P01–57P03 (shut down, crashed, not yet accepting).
+ * Such requests answer 503 and may be sent again.
+ */
+export function isDatabaseUnavailable(e: unknown): boolean {
+	return codesOf(e).some((c) => LOST.has(c) || c.startsWith('08') || /^57P0[123]$/.test(c));
 }
 
 export { schema };

@@ -18,14 +18,19 @@ export interface LocalCluster {
 	url: string;
 	port: number;
 	dataDir: string;
-	/** Stops the server if this process started it (fast shutdown). */
-	stop(): Promise<void>;
+	/**
+	 * Stops the server if this process started it: a fast shutdown, or an immediate one (as
+	 * after a crash: no checkpoint, the next start recovers from the write-ahead log).
+	 */
+	stop(mode?: 'fast' | 'immediate'): Promise<void>;
 }
 
 export interface ClusterOptions {
 	dataDir: string;
 	/** Throwaway clusters trade durability for speed; never for real data. */
 	ephemeral?: boolean;
+	/** Listen on this port instead of a free one (a restart that keeps its address). */
+	port?: number;
 	log?: (line: string) => void;
 }
 
@@ -209,7 +214,7 @@ export async function startLocalCluster(options: ClusterOptions): Promise<LocalC
 	let port = runningPort(pgData);
 	let child: ChildProcess | null = null;
 	if (!port) {
-		port = await freePort();
+		port = options.port ?? (await freePort());
 		const args = [
 			'-D',
 			pgData,
@@ -242,11 +247,11 @@ export async function startLocalCluster(options: ClusterOptions): Promise<LocalC
 		url,
 		port,
 		dataDir,
-		async stop() {
+		async stop(mode = 'fast') {
 			if (!started || started.exitCode !== null) return;
 			await new Promise<void>((resolve) => {
 				started.once('exit', () => resolve());
-				started.kill('SIGINT');
+				started.kill(mode === 'fast' ? 'SIGINT' : 'SIGQUIT');
 			});
 		}
 	};
