@@ -34,9 +34,9 @@ export default defineConfig({
 			{
 				extends: './vite.config.ts',
 				test: {
-					name: 'load',
+					name: 'system',
 					environment: 'node',
-					include: ['tests/load/**/*.test.ts'],
+					include: ['tests/load/**/*.test.ts', 'tests/fuzz/**/*.test.ts'],
 					fileParallelism: false
 				}
 			}

@@ -374,6 +374,7 @@ test('a cross-origin form post is refused (CSRF)', async () => {
 		headers: { origin: 'http://evil.example', 'content-type': 'text/plain' }
 	});
 	expect(plain.status()).toBe(403);
+	expect(((await plain.json()) as { error: { code: string } }).error.code).toBe('cross_site');
 	const { parts } = await getJson<{ parts: { number: string }[] }>(ctx.engineer, '/api/v1/parts?q=CSRF');
 	expect(parts.filter((p) => p.number.startsWith('CSRF-'))).toEqual([]);
 

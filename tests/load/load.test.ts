@@ -11,7 +11,7 @@
  */
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type autocannon from 'autocannon';
-import { DEMO_PASSWORD } from '../../src/lib/server/config';
+import { signInCookie } from '../fixtures/sign-in';
 import { EventWatch } from './events';
 import { drive, newTally, SimulatedInspector, type Tally } from './inspectors';
 import { startPlant, type Plant } from './plant';
@@ -25,17 +25,7 @@ let engineerCookie: string;
 
 beforeAll(async () => {
 	plant = await startPlant('load');
-	const base = plant.apps[0]!.url;
-	const res = await fetch(`${base}/sign-in`, {
-		method: 'POST',
-		redirect: 'manual',
-		headers: { 'content-type': 'application/x-www-form-urlencoded', origin: base },
-		body: new URLSearchParams({ email: 'engineer@example.com', password: DEMO_PASSWORD }).toString()
-	});
-	engineerCookie = res.headers
-		.getSetCookie()
-		.map((c) => c.split(';', 1)[0])
-		.join('; ');
+	engineerCookie = await signInCookie(plant.apps[0]!.url, 'engineer@example.com');
 }, 180_000);
 
 afterAll(async () => {

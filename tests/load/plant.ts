@@ -11,7 +11,7 @@ import { randomUUID } from 'node:crypto';
 import postgres from 'postgres';
 import { AppProcess } from '../fixtures/app-server';
 import { freePort, startLocalCluster, type LocalCluster } from '../../src/lib/server/db/local-cluster';
-import { DEMO_PASSWORD } from '../../src/lib/server/config';
+import { signInCookie } from '../fixtures/sign-in';
 
 export interface InspectorAccount {
 	email: string;
@@ -42,24 +42,6 @@ export interface Plant {
 	stop(): Promise<void>;
 }
 
-async function signIn(base: string, email: string): Promise<string> {
-	const res = await fetch(`${base}/sign-in`, {
-		method: 'POST',
-		redirect: 'manual',
-		headers: { 'content-type': 'application/x-www-form-urlencoded', origin: base, accept: 'text/html' },
-		body: new URLSearchParams({ email, password: DEMO_PASSWORD }).toString(),
-		signal: AbortSignal.timeout(30_000)
-	});
-	await res.text();
-	if (res.status !== 303) throw new Error(`Signing in as ${email} answered ${res.status}.`);
-	const cookie = res.headers
-		.getSetCookie()
-		.map((c) => c.split(';', 1)[0]!)
-		.join('; ');
-	if (!cookie) throw new Error(`Signing in as ${email} set no cookie.`);
-	return cookie;
-}
-
 /**
  * Adds `count` inspectors to the demo organisation straight in the database (the demo password's
  * hash is copied from the demo inspector), then signs each in through the app.
@@ -85,7 +67,7 @@ async function addInspectors(sql: postgres.Sql, base: string, orgId: string, gro
 	const accounts: InspectorAccount[] = [];
 	for (let i = 0; i < emails.length; i += 8) {
 		const batch = emails.slice(i, i + 8);
-		const cookies = await Promise.all(batch.map((email) => signIn(base, email)));
+		const cookies = await Promise.all(batch.map((email) => signInCookie(base, email)));
 		batch.forEach((email, j) => accounts.push({ email, cookie: cookies[j]! }));
 	}
 	return accounts;

@@ -33,6 +33,33 @@ export function issuesOf(error: z.ZodError): Issues {
 	return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
 }
 
+/** No payload of Stipple's nests deeper than this; deeper input is refused, not walked. */
+export const MAX_DEPTH = 32;
+
+/**
+ * What makes `value` unfit to store: a NUL character (U+0000) in a string or a key, which
+ * PostgreSQL's text cannot hold (`{ nul: path }`), or nesting deeper than MAX_DEPTH
+ * (`{ tooDeep: true }`); null when neither. Walked with a stack of its own, so hostile nesting
+ * cannot overflow the call stack.
+ */
+export function unfit(value: unknown): { nul: string } | { tooDeep: true } | null {
+	const stack: { value: unknown; path: string[] }[] = [{ value, path: [] }];
+	while (stack.length) {
+		const { value: v, path } = stack.pop()!;
+		if (typeof v === 'string') {
+			if (v.includes('\0')) return { nul: path.join('.') };
+			continue;
+		}
+		if (!v || typeof v !== 'object') continue;
+		if (path.length >= MAX_DEPTH) return { tooDeep: true };
+		for (const [k, child] of Object.entries(v)) {
+			if (k.includes('\0')) return { nul: [...path, k].join('.') };
+			stack.push({ value: child, path: [...path, k] });
+		}
+	}
+	return null;
+}
+
 /** A checkbox in a page form: present ("on" or "true") means true, absent means false. */
 export const formBool = z.preprocess((v) => v === 'on' || v === 'true' || v === true, z.boolean());
 

@@ -13,6 +13,7 @@ import {
 	type HistoryCatalogue,
 	type NumberedRow
 } from '$lib/schemas/history';
+import { unfit } from '$lib/schemas/common';
 import type { Access } from './access';
 import { audit } from './audit';
 import { listTools } from './catalogue';
@@ -134,6 +135,10 @@ export async function importHistory(access: Access, partId: string, csvText: str
 	};
 	const good: NumberedRow[] = [];
 	for (const l of read.lines) {
+		if (unfit(l.cells)) {
+			add(l.line, ['The line holds a NUL character (U+0000), which text cannot hold.']);
+			continue;
+		}
 		const parsed = schema.safeParse(l.cells);
 		add(l.line, [...l.problems, ...(parsed.success ? [] : rowProblems(parsed.error))]);
 		if (parsed.success && l.problems.length === 0) good.push({ line: l.line, row: parsed.data });

@@ -1,7 +1,7 @@
 /** Turning requests into typed input and domain errors into 4xx answers. */
 import { error, fail, json } from '@sveltejs/kit';
 import type { z } from 'zod';
-import { issuesOf, type Issues } from '$lib/schemas/common';
+import { issuesOf, unfit, type Issues } from '$lib/schemas/common';
 import { isDatabaseUnavailable } from './db';
 import { DomainError } from './errors';
 import { IMAGE_LIMITS } from './images';
@@ -53,7 +53,15 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
 	return validate(schema, raw);
 }
 
+const NUL_MESSAGE = 'Text cannot hold the NUL character (U+0000).';
+
 export function validate<S extends z.ZodType>(schema: S, raw: unknown): z.infer<S> {
+	const bad = unfit(raw);
+	if (bad && 'tooDeep' in bad) throw new DomainError(400, 'bad_json', 'The input nests deeper than any request needs.');
+	if (bad)
+		throw new DomainError(422, 'invalid', 'Some fields are missing or wrong.', [
+			{ path: bad.nul, message: NUL_MESSAGE }
+		]);
 	const parsed = schema.safeParse(raw);
 	if (!parsed.success) {
 		throw new DomainError(422, 'invalid', 'Some fields are missing or wrong.', issuesOf(parsed.error));
@@ -105,6 +113,11 @@ export async function act<S extends z.ZodType, R>(
 			.filter(([k]) => !SECRET_FIELDS.has(k))
 			.map(([k, v]) => [k, Array.isArray(v) ? v.join(', ') : v])
 	);
+	const bad = unfit(raw);
+	if (bad && 'nul' in bad) {
+		const issues = [{ path: bad.nul, message: NUL_MESSAGE }];
+		return fail(400, { message: 'Please check the fields marked below.', issues, values });
+	}
 	const parsed = schema.safeParse(raw);
 	if (!parsed.success) {
 		return fail(400, { message: 'Please check the fields marked below.', issues: issuesOf(parsed.error), values });
