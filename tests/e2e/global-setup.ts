@@ -8,5 +8,6 @@ export default async function globalSetup() {
 	const server = await startAppServer('e2e');
 	process.env.STIPPLE_E2E_URL = server.url;
 	process.env.STIPPLE_E2E_LOG = server.appLog;
+	process.env.STIPPLE_E2E_DATABASE_URL = server.databaseUrl;
 	return () => server.stop();
 }
