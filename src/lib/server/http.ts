@@ -130,9 +130,12 @@ export async function act<S extends z.ZodType, R>(
 	}
 }
 
-/** The files sent under `name` in a form (an empty file input sends one empty file: left out). */
+/**
+ * The files sent under `name` in a form. An empty file input sends one empty file without a name:
+ * left out. A chosen file that is empty is kept, so the verb refuses it.
+ */
 export async function formFiles(form: FormData, name: string): Promise<Buffer[]> {
-	const files = form.getAll(name).filter((v): v is File => typeof v !== 'string' && v.size > 0);
+	const files = form.getAll(name).filter((v): v is File => typeof v !== 'string' && (v.size > 0 || v.name !== ''));
 	return Promise.all(files.map(async (f) => Buffer.from(await f.arrayBuffer())));
 }
 

@@ -69,7 +69,7 @@ const photoTypes = () => new DomainError(415, 'unsupported_type', 'A photo is a 
 const unsupported = () =>
 	new DomainError(415, 'unsupported_type', 'Upload a PNG, JPEG, WebP, TIFF or SVG image, or a PDF page.');
 
-function readError(e: unknown): never {
+function readError(e: unknown, photo: boolean): never {
 	const message = e instanceof Error ? e.message : String(e);
 	if (/pixel limit/i.test(message)) {
 		throw new DomainError(
@@ -78,7 +78,7 @@ function readError(e: unknown): never {
 			`The image is larger than ${Math.round(IMAGE_LIMITS.maxPixels / 1e6)} megapixels. Scale it down and try again.`
 		);
 	}
-	if (/unsupported image format/i.test(message)) throw unsupported();
+	if (/unsupported image format/i.test(message)) throw photo ? photoTypes() : unsupported();
 	throw new DomainError(422, 'unreadable_image', 'The file is not a readable image, or it is damaged or cut short.');
 }
 
@@ -105,7 +105,7 @@ export async function processImage(
 	try {
 		meta = await sharp(bytes, input).metadata();
 	} catch (e) {
-		return readError(e);
+		return readError(e, !svg);
 	}
 	const format = meta.format ?? '';
 	const type = ACCEPTED.get(format);
@@ -137,6 +137,6 @@ export async function processImage(
 			thumb: { bytes: thumb.data, width: thumb.info.width, height: thumb.info.height }
 		};
 	} catch (e) {
-		return readError(e);
+		return readError(e, !svg);
 	}
 }

@@ -3,15 +3,17 @@
  * process reaches a Trends page served by another. One LISTEN per process fans out to every open
  * event stream.
  *
- * postgres.js listens again by itself after a lost connection, but only once: if the database is
- * still starting, that attempt fails quietly and the process would hear nothing more. So each
- * process also sends itself a heartbeat on the channel every second while anyone is listening;
- * when its own heartbeats stop coming back, it listens afresh. Every new LISTEN after the first
- * tells the streams to catch up (`resync`), since events may have been missed in between.
+ * The LISTEN has a client of its own. postgres.js listens again by itself after a lost
+ * connection, but only once: if the database is still starting, that attempt fails quietly and
+ * the process would hear nothing more. So each process sends itself a heartbeat on the channel
+ * every second (through that same small client, so a busy pool cannot delay it) while anyone is
+ * listening; when its heartbeats stop coming back, it drops the client and listens afresh. Every
+ * LISTEN after the first tells the streams to catch up (`resync`): events may have been missed.
  */
 import { randomUUID } from 'node:crypto';
 import { EventEmitter } from 'node:events';
-import { sqlClient } from './db';
+import type postgres from 'postgres';
+import { separateClient, sqlClient } from './db';
 
 export type LiveEvent =
 	| { type: 'sample.closed'; orgId: string; partId: string; sampleId: string }
@@ -29,13 +31,14 @@ interface Heartbeat {
 const CHANNEL = 'stipple_live';
 const HEARTBEAT_MS = 1_000;
 /** No heartbeat back for this long: the LISTEN is gone. */
-const DEAF_AFTER_MS = 3_500;
+const DEAF_AFTER_MS = 3_000;
 const PROCESS = randomUUID();
 
 const bus = new EventEmitter();
 bus.setMaxListeners(0);
 
-let listening: { unlisten: () => Promise<void> } | null = null;
+let client: postgres.Sql | null = null;
+let listening = false;
 let starting: Promise<void> | null = null;
 let heard = 0;
 let listens = 0;
@@ -57,15 +60,17 @@ function received(payload: string) {
 
 function listen(): Promise<void> {
 	starting ??= (async () => {
+		listening = false;
+		// The old client may hang on a dead connection: let it go without waiting.
+		void client?.end({ timeout: 1 }).catch(() => {});
+		client = separateClient('stipple-live');
 		try {
-			const previous = listening;
-			listening = null;
-			await previous?.unlisten().catch(() => {});
-			listening = await sqlClient().listen(CHANNEL, received, () => {
+			await client.listen(CHANNEL, received, () => {
 				// Called on every (re)listen: after the first, events may have been missed.
 				heard = Date.now();
 				if (listens++ > 0) bus.emit('event', { type: 'resync' } satisfies LiveEvent);
 			});
+			listening = true;
 		} catch (e) {
 			console.error(`[stipple] live events: ${e instanceof Error ? e.message : String(e)}`);
 		} finally {
@@ -76,15 +81,13 @@ function listen(): Promise<void> {
 }
 
 function beat() {
-	if (bus.listenerCount('event') === 0) return;
-	if (!listening || Date.now() - heard > DEAF_AFTER_MS) {
+	if (bus.listenerCount('event') === 0 || starting) return;
+	if (!listening || !client || Date.now() - heard > DEAF_AFTER_MS) {
 		void listen();
 		return;
 	}
 	const ping: Heartbeat = { type: 'heartbeat', from: PROCESS };
-	sqlClient()
-		.notify(CHANNEL, JSON.stringify(ping))
-		.catch(() => {}); // the database is away; the next beat finds out
+	client.notify(CHANNEL, JSON.stringify(ping)).catch(() => {}); // the database is away; a later beat finds out
 }
 
 export async function publish(event: LiveEvent) {
@@ -92,7 +95,7 @@ export async function publish(event: LiveEvent) {
 }
 
 export function subscribe(listener: (event: LiveEvent) => void): () => void {
-	if (!listening) void listen();
+	if (!client) void listen();
 	heartbeat ??= setInterval(beat, HEARTBEAT_MS);
 	heartbeat.unref?.();
 	bus.on('event', listener);

@@ -13,7 +13,9 @@ async function open(file: Blob) {
 		.promise;
 	if (doc.numPages > MAX_PAGES) {
 		await doc.destroy();
-		throw new Error(`This PDF has ${doc.numPages} pages; Stipple takes drawings of up to ${MAX_PAGES} pages.`);
+		throw new Error(
+			`This PDF has ${doc.numPages.toLocaleString('en-GB')} pages; Stipple takes drawings of up to ${MAX_PAGES} pages.`
+		);
 	}
 	return doc;
 }

@@ -30,7 +30,14 @@ function connect(): Connection {
 	return connection;
 }
 
-/** The postgres.js client under Drizzle, for LISTEN / NOTIFY. */
+/** A small client of its own (not the pool), for a connection that must not wait behind queries. */
+export function separateClient(name: string, max = 1): postgres.Sql {
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set and no embedded PostgreSQL was started.');
+	return postgres(url, { max, onnotice: () => {}, connection: { application_name: name } });
+}
+
+/** The postgres.js client under Drizzle, for NOTIFY. */
 export function sqlClient(): postgres.Sql {
 	return connect().client;
 }

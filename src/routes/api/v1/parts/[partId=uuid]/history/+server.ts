@@ -22,12 +22,16 @@ export const POST: RequestHandler = (event) =>
 		}
 		const { name } = validate(historyUploadQuerySchema, { name: event.url.searchParams.get('name') ?? undefined });
 		const bytes = await readUpload(event.request, HISTORY_LIMITS.maxBytes);
+		const notUtf8 = () =>
+			new DomainError(422, 'not_utf8', 'The file is not UTF-8 text. Save it as “CSV UTF-8” and try again.');
 		let text: string;
 		try {
 			// TextDecoder drops a byte-order mark (spreadsheets like to write one).
 			text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
 		} catch {
-			throw new DomainError(422, 'not_utf8', 'The file is not UTF-8 text. Save it as “CSV UTF-8” and try again.');
+			throw notUtf8();
 		}
+		// NUL characters in text: UTF-16 without a byte-order mark, most likely.
+		if (text.includes('\0')) throw notUtf8();
 		return json(await importHistory(access, event.params.partId, text, name), { status: 201 });
 	});
