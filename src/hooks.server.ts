@@ -125,6 +125,8 @@ const look: Handle = async ({ event, resolve }) => {
 	response.headers.set('referrer-policy', 'same-origin');
 	response.headers.set('x-frame-options', 'DENY');
 	response.headers.set('permissions-policy', 'camera=(self), microphone=(), geolocation=()');
+	// Served over HTTPS (ORIGIN https://…, usually behind a proxy): browsers keep to HTTPS for a year.
+	if (event.url.protocol === 'https:') response.headers.set('strict-transport-security', 'max-age=31536000');
 	return response;
 };
 

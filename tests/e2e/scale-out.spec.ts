@@ -5,11 +5,8 @@
  * second: the event travels through PostgreSQL's NOTIFY, not through either process's memory.
  */
 import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import { expect, test } from '@playwright/test';
-import { AppProcess } from '../fixtures/app-server';
-import { freePort } from '../../src/lib/server/db/local-cluster';
+import { anotherApp } from './another-app';
 import { closedSample, demo } from './demo-api';
 import { DEMO_PASSWORD, shoot, signIn } from './helpers';
 
@@ -27,16 +24,7 @@ test('two app processes, one database: a sample closed on one arrives live on Tr
 	playwright
 }) => {
 	test.setTimeout(90_000);
-	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'stipple-e2e-second-'));
-	const second = new AppProcess({
-		label: 'e2e',
-		port: await freePort(),
-		databaseUrl: process.env.STIPPLE_E2E_DATABASE_URL!,
-		dataDir: dir,
-		logFile: path.join(dir, 'app.log'),
-		env: sharedServices()
-	});
-	await second.start();
+	const second = await anotherApp(sharedServices());
 	const first = await playwright.request.newContext({ baseURL: process.env.STIPPLE_E2E_URL });
 	try {
 		expect(second.url).not.toBe(process.env.STIPPLE_E2E_URL);
@@ -64,7 +52,6 @@ test('two app processes, one database: a sample closed on one arrives live on Tr
 		await context.close();
 	} finally {
 		await first.dispose();
-		await second.kill();
-		fs.rmSync(dir, { recursive: true, force: true });
+		await second.stop();
 	}
 });

@@ -256,7 +256,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
 	await server?.stop();
-});
+}, 60_000);
 
 test(`every API route on disk, ${CASES} fuzzed requests in all: never a 5xx, every 4xx in the error shape`, async () => {
 	const ops = operations(await documented(server.url));

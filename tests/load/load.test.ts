@@ -37,6 +37,20 @@ async function inspectors(group: string, tally: Tally) {
 	return accounts.map((a) => new SimulatedInspector(a.email, a.cookie, plant.workpiece, tally));
 }
 
+/** The database against the acknowledgements: every acknowledged pin once, nothing stray or doubled. */
+async function storedOnce(tally: Tally, group: string) {
+	const found = await audit(plant.sql, tally, group);
+	expect(found).toMatchObject({
+		ackedStored: tally.acked.size,
+		stray: 0,
+		doubled: 0,
+		straySamples: 0,
+		closedWrong: 0,
+		doubleOpen: 0
+	});
+	return found;
+}
+
 /** Nearest-rank percentile. */
 function percentile(values: number[], q: number) {
 	const sorted = [...values].sort((a, b) => a - b);
@@ -78,15 +92,7 @@ describe('under load', () => {
 				non2xx: 0
 			});
 			expect(tally.acked.size).toBeGreaterThan(INSPECTORS);
-			const found = await audit(plant.sql, tally, 'steady');
-			expect(found).toMatchObject({
-				ackedStored: tally.acked.size,
-				stray: 0,
-				doubled: 0,
-				straySamples: 0,
-				closedWrong: 0,
-				doubleOpen: 0
-			});
+			const found = await storedOnce(tally, 'steady');
 			expect(found.closed).toBeGreaterThan(0);
 			// In flight when the run stopped: at most one pin per inspector.
 			expect(found.storedUnacked).toBeLessThanOrEqual(INSPECTORS);
@@ -147,15 +153,7 @@ describe('under load', () => {
 			expect(tally.unexpected).toEqual([]);
 			// While the database restarted, requests were told 503 (try again), never a bare 500.
 			expect([...tally.retriedAfter.keys()].filter((s) => s !== 503)).toEqual([]);
-			const found = await audit(plant.sql, tally, 'faulty');
-			expect(found).toMatchObject({
-				ackedStored: tally.acked.size,
-				stray: 0,
-				doubled: 0,
-				straySamples: 0,
-				closedWrong: 0,
-				doubleOpen: 0
-			});
+			await storedOnce(tally, 'faulty');
 
 			// The app found its database again by itself: same process, acknowledgements after.
 			const [before, after] = pidThroughDatabaseRestart;
