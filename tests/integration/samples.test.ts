@@ -74,7 +74,7 @@ async function plant(label: string) {
 	const scratch = await createDefectType(access, type(`SC${label.length}`));
 	const dent = await createDefectType(access, type(`DN${label.length}`));
 	await setPlan(access, part.id, plan);
-	return { admin, access, part, rev, otherRev, scratch, dent };
+	return { admin, access, part, other, rev, otherRev, scratch, dent };
 }
 
 async function member(p: Awaited<ReturnType<typeof plant>>, role: Role): Promise<Access> {
@@ -171,6 +171,17 @@ describe('samples and pins', () => {
 		await expectDomainError(updateUnit(ben, s.id, 2, { clean: true }), 403);
 		await setPlan(p.access, p.part.id, { ...plan, sharedSamples: true });
 		expect((await writePin(ben, s.id, pinOn(p, 1))).created).toBe(true);
+	});
+
+	it('takes a type made for this part only, and a pin on a unit marked clean makes it pinned', async () => {
+		const p = await plant('forpart');
+		const own = await createDefectType(p.access, { ...type('FP'), allParts: false, partIds: [p.part.id] });
+		const s = await startSample(p.access, startSampleSchema.parse({ partId: p.part.id }));
+		await updateUnit(p.access, s.id, 2, { clean: true });
+		expect((await getSample(p.access.org.id, s.id)).units[1]!.status).toBe('clean');
+		const { pin: placed, created } = await writePin(p.access, s.id, { ...pinOn(p, 2), defectTypeId: own.id });
+		expect([created, placed.defectTypeId, placed.zone, placed.regions]).toEqual([true, own.id, 'B2', []]);
+		expect((await getSample(p.access.org.id, s.id)).units.map((u) => u.status)).toEqual(['open', 'pinned', 'open']);
 	});
 
 	it("answers 404 for another organisation's sample and pins", async () => {
@@ -272,6 +283,27 @@ describe('bad input on the Bench', () => {
 			'wrong_drawing'
 		);
 		await expectDomainError(writePin(p.access, s.id, pinOn(p, 4)), 422, 'invalid');
+		const elsewhere = await plant('badpin-elsewhere');
+		await expectDomainError(writePin(p.access, s.id, { ...pinOn(p, 1), revisionId: elsewhere.rev.id }), 404);
+		await expectDomainError(
+			writePin(p.access, s.id, { ...pinOn(p, 1), defectTypeId: elsewhere.scratch.id }),
+			422,
+			'unknown_type'
+		);
+		const otherPartOnly = await createDefectType(p.access, {
+			...type('OP'),
+			allParts: false,
+			partIds: [p.other.id]
+		});
+		await expectDomainError(
+			writePin(p.access, s.id, { ...pinOn(p, 1), defectTypeId: otherPartOnly.id }),
+			422,
+			'type_not_for_part'
+		);
+		const t = await startSample(elsewhere.access, startSampleSchema.parse({ partId: elsewhere.part.id }));
+		const taken = pinOn(elsewhere, 1);
+		await writePin(elsewhere.access, t.id, taken);
+		await expectDomainError(writePin(p.access, s.id, { ...pinOn(p, 1), id: taken.id }), 409, 'conflict');
 		await updateDefectType(p.access, p.dent.id, { retired: true });
 		const retired = await expectDomainError(
 			writePin(p.access, s.id, { ...pinOn(p, 1), defectTypeId: p.dent.id }),

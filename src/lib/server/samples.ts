@@ -53,13 +53,20 @@ type SampleRow = { [K in keyof typeof sampleFields]: (typeof sample.$inferSelect
 const isEngineer = (access: Access) => access.role === 'engineer' || access.role === 'admin';
 
 /** Inspectors write their own samples (or any, where the plan shares them); engineers any. */
+function refuseUnlessWriter(access: Access, s: SampleRow, planShared: boolean) {
+	if (isEngineer(access) || s.inspectorId === access.user.id || planShared) return;
+	throw forbidden('This sample belongs to another inspector.');
+}
+
+const planSharesSamples = sql<boolean>`EXISTS (SELECT 1 FROM ${samplingPlan} WHERE ${samplingPlan.partId} = ${sample.partId} AND ${samplingPlan.sharedSamples})`;
+
 async function mayWrite(access: Access, s: SampleRow) {
 	if (isEngineer(access) || s.inspectorId === access.user.id) return;
 	const [plan] = await db()
 		.select({ shared: samplingPlan.sharedSamples })
 		.from(samplingPlan)
 		.where(eq(samplingPlan.partId, s.partId));
-	if (!plan?.shared) throw forbidden('This sample belongs to another inspector.');
+	refuseUnlessWriter(access, s, !!plan?.shared);
 }
 
 async function lockSample(tx: Tx, orgId: string, sampleId: string, mode: 'share' | 'update') {
@@ -222,40 +229,45 @@ const photoIds = sql<
 	string[]
 >`ARRAY(SELECT pp.id::text FROM pin_photo pp WHERE pp.pin_id = "pin"."id" AND pp.deleted_at IS NULL ORDER BY pp.created_at)`;
 
+type Drawing = { columns: number | null; rows: number | null; partId: string | null };
+type Regions = { name: string; points: Point[] }[];
+
 /** The revision must show the sample's part; its grid and regions place the point. */
-async function placeOn(tx: Tx, orgId: string, partId: string, revisionId: string, point: Point) {
-	// Both at once: postgres.js pipelines them on the transaction's connection (one round trip).
-	const [[rev], regions] = await Promise.all([
-		tx
-			.select({ columns: viewRevision.gridColumns, rows: viewRevision.gridRows, partId: partView.partId })
-			.from(viewRevision)
-			.innerJoin(partView, eq(viewRevision.viewId, partView.id))
-			.where(and(eq(viewRevision.id, revisionId), eq(viewRevision.organizationId, orgId))),
-		tx.select({ name: region.name, points: region.points }).from(region).where(eq(region.revisionId, revisionId))
-	]);
-	if (!rev) throw notFound('That drawing');
-	if (rev.partId !== partId) {
+function placeOnDrawing(drawing: Drawing | undefined, regions: Regions, partId: string, point: Point) {
+	if (!drawing?.partId) throw notFound('That drawing');
+	if (drawing.partId !== partId) {
 		throw new DomainError(422, 'wrong_drawing', 'This drawing shows another part.', [
 			{ path: 'revisionId', message: 'Pin on a drawing of the sample’s part.' }
 		]);
 	}
 	return {
-		zone: rev.columns && rev.rows ? zoneOf(point, rev.columns, rev.rows).label : null,
+		zone: drawing.columns && drawing.rows ? zoneOf(point, drawing.columns, drawing.rows).label : null,
 		regions: regionsOf(point, regions)
 	};
 }
 
+async function placeOn(tx: Tx, orgId: string, partId: string, revisionId: string, point: Point) {
+	// Both at once: postgres.js pipelines them on the transaction's connection (one round trip).
+	const [[drawing], regions] = await Promise.all([
+		tx
+			.select({ columns: viewRevision.gridColumns, rows: viewRevision.gridRows, partId: partView.partId })
+			.from(viewRevision)
+			.innerJoin(partView, eq(viewRevision.viewId, partView.id))
+			.where(and(eq(viewRevision.id, revisionId), eq(viewRevision.organizationId, orgId))),
+		tx
+			.select({ name: region.name, points: region.points })
+			.from(region)
+			.where(eq(region.revisionId, revisionId))
+			.orderBy(asc(region.createdAt), asc(region.name))
+	]);
+	return placeOnDrawing(drawing, regions, partId, point);
+}
+
+type TypeFacts = { found: boolean; retiredAt: Date | null; allParts: boolean; forPart: boolean };
+
 /** The type must be in the catalogue, active, and apply to the part. */
-async function usableType(tx: Tx, orgId: string, partId: string, defectTypeId: string) {
-	const [t] = await tx
-		.select({
-			retiredAt: defectType.retiredAt,
-			allParts: defectType.allParts,
-			forPart: sql<boolean>`EXISTS (SELECT 1 FROM ${defectTypePart} WHERE ${defectTypePart.defectTypeId} = ${defectType.id} AND ${defectTypePart.partId} = ${partId})`
-		})
-		.from(defectType)
-		.where(and(eq(defectType.id, defectTypeId), eq(defectType.organizationId, orgId)));
-	if (!t)
+function refuseUnusableType(t: TypeFacts | undefined) {
+	if (!t?.found)
 		throw new DomainError(422, 'unknown_type', 'This defect type is not in the catalogue.', [
 			{ path: 'defectTypeId', message: 'Unknown type.' }
 		]);
@@ -265,6 +277,58 @@ async function usableType(tx: Tx, orgId: string, partId: string, defectTypeId: s
 		throw new DomainError(422, 'type_not_for_part', 'This defect type does not apply to this part.', [
 			{ path: 'defectTypeId', message: 'Not for this part.' }
 		]);
+}
+
+async function usableType(tx: Tx, orgId: string, partId: string, defectTypeId: string) {
+	const [t] = await tx
+		.select({
+			found: sql<boolean>`true`,
+			retiredAt: defectType.retiredAt,
+			allParts: defectType.allParts,
+			forPart: sql<boolean>`EXISTS (SELECT 1 FROM ${defectTypePart} WHERE ${defectTypePart.defectTypeId} = ${defectType.id} AND ${defectTypePart.partId} = ${partId})`
+		})
+		.from(defectType)
+		.where(and(eq(defectType.id, defectTypeId), eq(defectType.organizationId, orgId)));
+	refuseUnusableType(t);
+}
+
+/**
+ * Everything a new pin is checked against, in one query: the sample (locked against a
+ * concurrent close), a pin already stored under the id, whether the plan shares samples, the
+ * defect type and the drawing revision with its regions.
+ */
+async function pinContext(tx: Tx, orgId: string, sampleId: string, input: PinInput) {
+	// Flat fields for the left-joined tables: drizzle would make a nested object null when its first column is.
+	const [c] = await tx
+		.select({
+			sample: sampleFields,
+			existing: pinFields,
+			planShared: planSharesSamples,
+			typeFound: sql<boolean>`${defectType.id} IS NOT NULL`,
+			typeRetiredAt: defectType.retiredAt,
+			typeAllParts: sql<boolean>`coalesce(${defectType.allParts}, false)`,
+			typeForPart: sql<boolean>`EXISTS (SELECT 1 FROM ${defectTypePart} WHERE ${defectTypePart.defectTypeId} = ${defectType.id} AND ${defectTypePart.partId} = ${sample.partId})`,
+			gridColumns: viewRevision.gridColumns,
+			gridRows: viewRevision.gridRows,
+			drawingPartId: partView.partId,
+			regions: sql<Regions>`coalesce((SELECT json_agg(json_build_object('name', r.name, 'points', r.points) ORDER BY r.created_at, r.name) FROM ${region} r WHERE r.revision_id = ${viewRevision.id}), '[]'::json)`
+		})
+		.from(sample)
+		.leftJoin(pin, eq(pin.id, input.id))
+		.leftJoin(defectType, and(eq(defectType.id, input.defectTypeId), eq(defectType.organizationId, orgId)))
+		.leftJoin(viewRevision, and(eq(viewRevision.id, input.revisionId), eq(viewRevision.organizationId, orgId)))
+		.leftJoin(partView, eq(viewRevision.viewId, partView.id))
+		.where(and(eq(sample.id, sampleId), eq(sample.organizationId, orgId)))
+		.for('share', { of: sample });
+	if (!c) throw notFound('That sample');
+	return {
+		sample: c.sample,
+		existing: c.existing,
+		planShared: c.planShared,
+		type: { found: c.typeFound, retiredAt: c.typeRetiredAt, allParts: c.typeAllParts, forPart: c.typeForPart },
+		drawing: { columns: c.gridColumns, rows: c.gridRows, partId: c.drawingPartId },
+		regions: c.regions
+	};
 }
 
 function refuseClosed(): never {
@@ -280,41 +344,49 @@ function refuseClosed(): never {
  * pin; `created` tells the two apart.
  */
 export async function writePin(access: Access, sampleId: string, input: PinInput) {
+	// Two round trips besides BEGIN and COMMIT: the checks' facts, then the pin and its unit.
 	return db().transaction(async (tx) => {
-		const [s, [existing]] = await Promise.all([
-			lockSample(tx, access.org.id, sampleId, 'share'),
-			tx.select(pinFields).from(pin).where(eq(pin.id, input.id))
-		]);
-		if (existing) {
+		const {
+			sample: s,
+			existing,
+			planShared,
+			type,
+			drawing,
+			regions
+		} = await pinContext(tx, access.org.id, sampleId, input);
+		if (existing?.id) {
 			if (existing.sampleId !== sampleId) throw conflict('This pin id belongs to another sample.');
 			return { pin: existing, created: false };
 		}
-		await mayWrite(access, s);
+		refuseUnlessWriter(access, s, planShared);
 		const reason = closedChange(access, s, input.reason);
 		if (input.unitIndex > s.unitCount) {
 			throw new DomainError(422, 'invalid', `This sample has ${s.unitCount} units.`, [
 				{ path: 'unitIndex', message: `Pick a unit from 1 to ${s.unitCount}.` }
 			]);
 		}
-		const [, place] = await Promise.all([
-			usableType(tx, access.org.id, s.partId, input.defectTypeId),
-			placeOn(tx, access.org.id, s.partId, input.revisionId, [input.x, input.y])
-		]);
+		refuseUnusableType(type);
+		const place = placeOnDrawing(drawing, regions, s.partId, [input.x, input.y]);
 		const { reason: _, ...fields } = input;
-		const [row] = await tx
-			.insert(pin)
-			.values({ ...fields, ...place, organizationId: access.org.id, sampleId, createdBy: access.user.id })
-			.onConflictDoNothing({ target: pin.id })
-			.returning(pinFields);
+		const [[row]] = await Promise.all([
+			tx
+				.insert(pin)
+				.values({ ...fields, ...place, organizationId: access.org.id, sampleId, createdBy: access.user.id })
+				.onConflictDoNothing({ target: pin.id })
+				.returning(pinFields),
+			// A unit with a pin is not clean. Only a clean one is written, so pins on a unit do not queue on its row.
+			tx
+				.update(sampleUnit)
+				.set({ clean: false })
+				.where(
+					and(eq(sampleUnit.sampleId, sampleId), eq(sampleUnit.index, input.unitIndex), eq(sampleUnit.clean, true))
+				)
+		]);
 		if (!row) {
 			// The same pin arrived twice at once; the other write stored it.
 			const [again] = await tx.select(pinFields).from(pin).where(eq(pin.id, input.id));
 			return { pin: again!, created: false };
 		}
-		await tx
-			.update(sampleUnit)
-			.set({ clean: false })
-			.where(and(eq(sampleUnit.sampleId, sampleId), eq(sampleUnit.index, input.unitIndex)));
 		if (reason) {
 			await audit(tx, access, {
 				action: 'pin.add',
