@@ -97,7 +97,9 @@ export async function startPlant(label: string, options: { apps?: number } = {})
 		await Promise.all(apps.map((a) => a.kill()));
 		await sql.end({ timeout: 5 });
 		await cluster.stop();
-		fs.rmSync(dir, { recursive: true, force: true });
+		// STIPPLE_LOAD_KEEP=1 keeps the app logs and the database for a look afterwards.
+		if (process.env.STIPPLE_LOAD_KEEP) console.log(`[load] kept ${dir}`);
+		else fs.rmSync(dir, { recursive: true, force: true });
 	};
 	try {
 		for (let i = 0; i < (options.apps ?? 1); i++) {
