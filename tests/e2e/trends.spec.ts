@@ -176,3 +176,45 @@ test('Trends fits a 768 px tablet; viewers read it without the limit panel', asy
 	await shoot(viewer, 'trends-viewer');
 	await desk.close();
 });
+
+test('a live update arriving while a filter change loads does not undo the change', async ({ browser }) => {
+	const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+	const page = await context.newPage();
+	await signIn(page, 'engineer@example.com');
+	const d = await demo(page.request);
+	await page.goto(`/trends?part=${d.partId}`);
+	await expect(page.getByTestId('control-chart')).toBeVisible();
+	await expect(page.getByTestId('live-state')).toHaveAttribute('data-live', 'yes');
+
+	// Hold the filter change's data request until a sample has closed elsewhere and its event
+	// has reached the page, so the page's live refetch falls inside the navigation.
+	let release!: () => void;
+	const held = new Promise<void>((r) => (release = r));
+	let heldOne = false;
+	await page.route(
+		(url) => url.pathname.endsWith('/trends/__data.json') && url.searchParams.has('type'),
+		async (route) => {
+			heldOne = true;
+			await held;
+			await route.continue();
+		}
+	);
+	const dataRequests: URL[] = [];
+	page.on('request', (r) => {
+		const url = new URL(r.url());
+		if (url.pathname.endsWith('/trends/__data.json')) dataRequests.push(url);
+	});
+	await page.getByLabel('Defect type', { exact: true }).selectOption({ label: 'FL · Flash' });
+	await expect.poll(() => heldOne).toBe(true);
+	await closedSample(page.request, d, [['FL']]);
+	// Time for the event to arrive and the page to want its refetch (400 ms after the event).
+	await page.waitForTimeout(1_500);
+	release();
+
+	await expect(page).toHaveURL(new RegExp(`type=${d.types.FL}`));
+	await expect(page.getByRole('heading', { name: /Defects per unit, FL/ })).toBeVisible();
+	// The live refetch came after the navigation, for the new filter; nothing asked for the old one.
+	await expect.poll(() => dataRequests.length).toBeGreaterThanOrEqual(2);
+	expect(dataRequests.map((u) => u.searchParams.get('type'))).toEqual(dataRequests.map(() => d.types.FL));
+	await context.close();
+});

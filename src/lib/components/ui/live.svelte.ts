@@ -4,6 +4,8 @@
  * and one refetch covers both. The browser's EventSource reconnects by itself; after a gap the
  * server sends `resync`, and a reconnect refetches too, since events may have been missed.
  */
+import { navigating } from '$app/state';
+
 export const LIVE_EVENTS = [
 	'sample.closed',
 	'signals.new',
@@ -47,8 +49,12 @@ export class LiveFeed {
 
 	#soon() {
 		clearTimeout(this.#timer);
-		this.#timer = setTimeout(() => {
-			void Promise.resolve(this.onchange()).then(() => (this.lastUpdate = Date.now()));
+		this.#timer = setTimeout(async () => {
+			// SvelteKit keeps only the newer of a navigation and a refetch: a refetch started now would
+			// cancel a filter the user just changed. Let that navigation land first (it loads fresh data too).
+			await navigating.complete?.catch(() => {});
+			await this.onchange();
+			this.lastUpdate = Date.now();
 		}, this.delay);
 	}
 
